@@ -1,0 +1,26 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Subcommands of umbra-cli. Each returns the process exit code: 0 success, 1 failure,
+// 2 bad input or usage. Each lives in its own cmd_*.cpp.
+#include <string>
+#include <vector>
+
+namespace umbra::cli {
+
+using Argv = std::vector<std::string>;
+
+int cmdInfo(const Argv& args);
+int cmdValidate(const Argv& args);
+int cmdSimulate(const Argv& args);
+int cmdReconstruct(const Argv& args);
+
+struct Command {
+    const char* name;
+    const char* summary;
+    int (*run)(const Argv&);
+};
+
+/// The table main() dispatches on.
+const std::vector<Command>& commands();
+
+}  // namespace umbra::cli

@@ -1,0 +1,54 @@
+// SPDX-License-Identifier: MIT
+// umbra-cli: headless Umbra. Thin: parses the subcommand and dispatches.
+#include <cstdio>
+#include <exception>
+#include <string>
+
+#include "commands.h"
+
+namespace umbra::cli {
+const std::vector<Command>& commands() {
+    static const std::vector<Command> table = {
+        {"info", "print a readable summary of a capture", cmdInfo},
+        {"validate", "check a capture against format v1; exit 2 listing each problem", cmdValidate},
+        {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
+        {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
+    };
+    return table;
+}
+}  // namespace umbra::cli
+
+int main(int argc, char** argv) {
+    using namespace umbra::cli;
+    auto usage = [] {
+        std::string s = "usage: umbra-cli COMMAND [options]\n\ncommands:\n";
+        for (auto& c : commands()) {
+            std::string n = "  " + std::string(c.name);
+            n.resize(16, ' ');
+            s += n + c.summary + "\n";
+        }
+        s += "\n'umbra-cli COMMAND --help' describes each command.\n";
+        return s;
+    };
+    if (argc < 2) {
+        std::fputs(usage().c_str(), stderr);
+        return 2;
+    }
+    std::string cmd = argv[1];
+    if (cmd == "--help" || cmd == "-h" || cmd == "help") {
+        std::fputs(usage().c_str(), stdout);
+        return 0;
+    }
+    Argv rest(argv + 2, argv + argc);
+    for (auto& c : commands())
+        if (cmd == c.name) {
+            try {
+                return c.run(rest);
+            } catch (const std::exception& e) {
+                std::fprintf(stderr, "umbra-cli %s: %s\n", c.name, e.what());
+                return 1;
+            }
+        }
+    std::fprintf(stderr, "umbra-cli: unknown command '%s'\n\n%s", cmd.c_str(), usage().c_str());
+    return 2;
+}

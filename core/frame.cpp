@@ -1,0 +1,92 @@
+// SPDX-License-Identifier: MIT
+#include "core/frame.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <mutex>
+
+#include "core/detail/h5.h"
+#include "core/error.h"
+
+namespace umbra::core {
+using namespace detail;
+
+float Frame::peak() const {
+    float m = 0;
+    for (float v : envelope) m = std::max(m, v);
+    return m;
+}
+
+Frame ImageStack::frame(size_t i) const {
+    Frame f;
+    f.x_m = x_m;
+    f.z_m = z_m;
+    const size_t n = x_m.size() * z_m.size();
+    f.envelope.assign(envelope.begin() + std::ptrdiff_t(i * n), envelope.begin() + std::ptrdiff_t((i + 1) * n));
+    f.recipe_json = recipe_json;
+    f.capture_sha256 = capture_sha256;
+    f.frame_index = i;
+    return f;
+}
+
+void writeImageFile(const std::string& path, const ImageStack& img) {
+    silenceHdf5();
+    const std::string partial = path + ".partial";
+    const size_t nx = img.x_m.size(), nz = img.z_m.size();
+    if (img.envelope.size() != img.frames * nx * nz)
+        throw InputError(path, "/image/envelope", "size does not match frames x N_z x N_x");
+    {
+        Hid f(H5Fcreate(partial.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT));
+        if (!f) throw InputError(path, "", "cannot create the file (directory missing or not writable?)");
+        try {
+            writeStringAttr(f.get(), "umbra_format", "image");
+            writeIntAttr(f.get(), "umbra_format_version", 1);
+            writeStringAttr(f.get(), "recipe_json", img.recipe_json);
+            writeStringAttr(f.get(), "capture_sha256", img.capture_sha256);
+            Hid g = createGroup(f.get(), "image");
+            writeFloats(g.get(), "envelope", img.envelope.data(), {img.frames, nz, nx});
+            writeDoubles(g.get(), "x_m", img.x_m.data(), {nx});
+            writeDoubles(g.get(), "z_m", img.z_m.data(), {nz});
+        } catch (const std::exception& e) {
+            f.reset();
+            std::remove(partial.c_str());
+            throw InputError(path, "", e.what());
+        }
+    }
+    std::error_code ec;
+    std::filesystem::rename(partial, path, ec);
+    if (ec) throw InputError(path, "", "cannot move the finished file into place: " + ec.message());
+}
+
+ImageStack readImageFile(const std::string& path) {
+    silenceHdf5();
+    if (H5Fis_hdf5(path.c_str()) <= 0) throw InputError(path, "", "is not an HDF5 file");
+    Hid f(H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT));
+    if (!f) throw InputError(path, "", "cannot be opened");
+    std::string err;
+    auto fmt = readStringAttr(f.get(), "umbra_format", err);
+    if (!fmt || *fmt != "image") throw InputError(path, "/@umbra_format", "is not 'image'");
+    auto ver = readIntAttr(f.get(), "umbra_format_version", err);
+    if (!ver || *ver != 1) throw InputError(path, "/@umbra_format_version", "must be 1");
+    ImageStack img;
+    if (auto r = readStringAttr(f.get(), "recipe_json", err)) img.recipe_json = *r;
+    if (auto s = readStringAttr(f.get(), "capture_sha256", err)) img.capture_sha256 = *s;
+    std::vector<hsize_t> dims;
+    auto x = readDoubles(f.get(), "/image/x_m", 1, 1 << 20, dims, err);
+    if (!x) throw InputError(path, "/image/x_m", err);
+    auto z = readDoubles(f.get(), "/image/z_m", 1, 1 << 20, dims, err);
+    if (!z) throw InputError(path, "/image/z_m", err);
+    auto e = readFloats(f.get(), "/image/envelope", 3, size_t(1) << 31, dims, err);
+    if (!e) throw InputError(path, "/image/envelope", err);
+    if (dims[1] != z->size() || dims[2] != x->size())
+        throw InputError(path, "/image/envelope", "shape does not match the axes");
+    img.x_m = *x;
+    img.z_m = *z;
+    img.frames = dims[0];
+    img.envelope = std::move(*e);
+    return img;
+}
+
+}  // namespace umbra::core

@@ -1,0 +1,39 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// One reconstructed image: linear envelope on an x-z grid, with the recipe that made it.
+#include <cstddef>
+#include <string>
+#include <vector>
+
+namespace umbra::core {
+
+struct Frame {
+    std::vector<double> x_m;     ///< [N_x] pixel centres, m
+    std::vector<double> z_m;     ///< [N_z] pixel centres (depth), m
+    std::vector<float> envelope; ///< [N_z][N_x] row-major, linear amplitude (not log)
+    std::string recipe_json;     ///< every setting used
+    std::string capture_sha256;  ///< of the capture's bytes
+    size_t frame_index = 0;      ///< which capture frame
+
+    size_t nx() const { return x_m.size(); }
+    size_t nz() const { return z_m.size(); }
+    float at(size_t iz, size_t ix) const { return envelope[iz * nx() + ix]; }
+    float peak() const;
+};
+
+/// A reconstructed image file (format "image", version 1): several frames on one grid.
+struct ImageStack {
+    std::vector<double> x_m, z_m;
+    size_t frames = 0;
+    std::vector<float> envelope;  ///< [frames][N_z][N_x]
+    std::string recipe_json;
+    std::string capture_sha256;
+    Frame frame(size_t i) const;
+};
+
+/// Writes atomically (temporary file then rename). Throws InputError naming the file.
+void writeImageFile(const std::string& path, const ImageStack& img);
+/// Reads and checks an image file. Throws InputError naming the file and the problem.
+ImageStack readImageFile(const std::string& path);
+
+}  // namespace umbra::core
