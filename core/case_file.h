@@ -1,0 +1,78 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// The case: a saved working session (.umbracase, JSON, schema documented in docs/case-file.md).
+// Captures are kept by path and SHA-256; in memory paths are as given (normally absolute);
+// in the file they are written relative to the case file's folder when possible and resolved
+// against it on load.
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include "core/finding.h"
+#include "core/measurement.h"
+
+namespace umbra::core {
+
+/// Current schema version written by saveCase / caseToJson.
+inline constexpr int kCaseVersion = 1;
+
+struct ViewState {
+    size_t frame = 0;          ///< frame shown
+    double zoom = 1;           ///< 1 = fit
+    double centre_x_mm = 0;    ///< view centre, mm
+    double centre_z_mm = 0;
+    std::string tool;          ///< active tool name, e.g. "caliper" ("" = none)
+    bool operator==(const ViewState&) const = default;
+};
+
+struct CaseCapture {
+    std::string path;          ///< capture file path (absolute after load)
+    std::string sha256;        ///< of the capture file's bytes, lowercase hex
+    std::string recipe_json;   ///< the recipe as JSON text ({"stage": {"param": value}}; "" = none)
+    ViewState view;
+    std::vector<Measurement> measurements;
+    bool operator==(const CaseCapture&) const = default;
+};
+
+struct CaseDocument {
+    int version = kCaseVersion;
+    std::string title;
+    std::string background;     ///< why the examination was ordered
+    std::string technique;      ///< technique block text (filled from capture + recipe)
+    std::vector<std::string> pertinent_negatives;  ///< things looked for and not present
+    std::string prior_comparison;                   ///< comparison with a prior examination
+    std::vector<CaseCapture> captures;
+    size_t active_capture = 0;
+    std::vector<Finding> findings;
+    bool operator==(const CaseDocument&) const = default;
+};
+
+/// JSON text of the case. Capture paths are written relative to `base_dir` when they lie
+/// under it (or can be reached with "../"); `base_dir` empty = paths written as they are.
+std::string caseToJson(const CaseDocument& doc, const std::string& base_dir = "");
+/// Parses and checks a case. Relative capture paths are resolved against `base_dir`.
+/// Throws InputError naming `source` and the JSON key (e.g. "findings[2].interpretation")
+/// for bad JSON, a missing/ill-typed key, an unknown enum name or an unknown version.
+CaseDocument caseFromJson(const std::string& text, const std::string& source,
+                          const std::string& base_dir = "");
+
+/// Saves atomically: writes a temporary file in the same folder, flushes and fsyncs it, renames
+/// it over `path` (and fsyncs the folder). On failure the old file is untouched and InputError
+/// naming `path` is thrown.
+void saveCase(const std::string& path, const CaseDocument& doc);
+/// Reads a case file; relative capture paths resolve against the file's folder.
+CaseDocument loadCase(const std::string& path);
+/// Sibling autosave path: "<folder>/<name>.umbracase.autosave" (".umbracase" added if missing).
+std::string autosavePath(const std::string& case_path);
+
+enum class CaptureStatus { Ok, Missing, Changed };
+/// Ok if the file exists and its SHA-256 matches; Missing if it does not exist or cannot be
+/// read; Changed if its bytes differ from the recorded hash.
+CaptureStatus checkCapture(const CaseCapture& capture);
+/// Re-points a moved capture: hashes `new_path` and, if it matches the recorded hash, sets
+/// capture.path = new_path and returns true. If it does not match, returns false and changes
+/// nothing unless `accept_changed` (then the path AND recorded hash are updated).
+/// Throws InputError if `new_path` cannot be read.
+bool relocateCapture(CaseCapture& capture, const std::string& new_path, bool accept_changed = false);
+
+}  // namespace umbra::core
