@@ -1,14 +1,464 @@
 // SPDX-License-Identifier: MIT
 #include "core/case_file.h"
 
-namespace umbra::core {
+#include <fcntl.h>
+#include <unistd.h>
 
-std::string caseToJson(const CaseDocument&, const std::string&) { return "{}"; }
-CaseDocument caseFromJson(const std::string&, const std::string&, const std::string&) { return {}; }
-void saveCase(const std::string&, const CaseDocument&) {}
-CaseDocument loadCase(const std::string&) { return {}; }
-std::string autosavePath(const std::string& case_path) { return case_path + ".autosave"; }
-CaptureStatus checkCapture(const CaseCapture&) { return CaptureStatus::Missing; }
-bool relocateCapture(CaseCapture&, const std::string&, bool) { return false; }
+#include <cerrno>
+#include <cmath>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <limits>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "core/capture_file.h"
+#include "core/error.h"
+
+namespace umbra::core {
+namespace {
+
+namespace fs = std::filesystem;
+using json = nlohmann::ordered_json;
+
+constexpr const char* kFormatTag = "umbracase";
+constexpr std::uintmax_t kMaxCaseBytes = 256u << 20;  // a case is text; refuse anything absurd
+
+// ---------- writing ----------
+
+json optionalNumber(const std::optional<double>& v) { return v ? json(*v) : json(nullptr); }
+
+std::string storedPath(const std::string& path, const std::string& base_dir) {
+    if (base_dir.empty() || path.empty()) return path;
+    std::error_code ec;
+    const fs::path abs = fs::absolute(fs::path(path), ec).lexically_normal();
+    if (ec) return path;
+    const fs::path base = fs::absolute(fs::path(base_dir), ec).lexically_normal();
+    if (ec) return path;
+    const fs::path rel = abs.lexically_relative(base);
+    if (rel.empty()) return fs::path(path).generic_string();  // different root: keep as given
+    return rel.generic_string();
+}
+
+json measurementJson(const Measurement& m) {
+    json j = json::object();
+    j["id"] = m.id;
+    j["kind"] = kindName(m.kind);
+    j["label"] = m.label;
+    j["frame"] = m.frame_index;
+    json pts = json::array();
+    for (const auto& p : m.points) pts.push_back(json::array({p.x_mm, p.z_mm}));
+    j["points_mm"] = pts;
+    return j;
+}
+
+json findingJson(const Finding& f) {
+    const Indication& in = f.indication;
+    json ind = json::object();
+    ind["location"] = in.location;
+    ind["capture"] = in.capture_index;
+    ind["frame"] = in.frame_index;
+    ind["x_mm"] = optionalNumber(in.x_mm);
+    ind["depth_mm"] = optionalNumber(in.depth_mm);
+    ind["length_mm"] = optionalNumber(in.length_mm);
+    ind["height_mm"] = optionalNumber(in.height_mm);
+    ind["peak_db"] = optionalNumber(in.peak_db);
+    ind["reference"] = in.reference;
+    ind["measurements"] = in.measurement_ids;
+    ind["description"] = in.description;
+    json j = json::object();
+    j["id"] = f.id;
+    j["number"] = f.number;
+    j["indication"] = ind;
+    j["interpretation"] = json{{"class", interpretationName(f.interpretation)},
+                               {"reason", f.interpretation_reason}};
+    j["evaluation"] = json{{"outcome", evaluationName(f.evaluation)}, {"criterion", f.criterion}};
+    return j;
+}
+
+// ---------- reading ----------
+
+// Typed access with the JSON key path in every error.
+class Reader {
+public:
+    explicit Reader(std::string source) : source_(std::move(source)) {}
+
+    [[noreturn]] void fail(const std::string& where, const std::string& what) const {
+        throw InputError(source_, where, what);
+    }
+
+    static std::string key(const std::string& path, const std::string& k) {
+        return path.empty() ? k : path + "." + k;
+    }
+    static std::string index(const std::string& path, size_t i) {
+        return path + "[" + std::to_string(i) + "]";
+    }
+
+    const json& object(const json& j, const std::string& path) const {
+        if (!j.is_object()) fail(path.empty() ? "(top level)" : path, "must be a JSON object");
+        return j;
+    }
+    const json& required(const json& obj, const std::string& path, const std::string& k) const {
+        auto it = obj.find(k);
+        if (it == obj.end()) fail(key(path, k), "missing");
+        return *it;
+    }
+    std::string text(const json& obj, const std::string& path, const std::string& k, bool need = false) const {
+        auto it = obj.find(k);
+        if (it == obj.end()) {
+            if (need) fail(key(path, k), "missing");
+            return {};
+        }
+        if (!it->is_string()) fail(key(path, k), "must be text (a JSON string)");
+        return it->get<std::string>();
+    }
+    double number(const json& obj, const std::string& path, const std::string& k, double def) const {
+        auto it = obj.find(k);
+        if (it == obj.end()) return def;
+        return numberValue(*it, key(path, k));
+    }
+    double numberValue(const json& v, const std::string& where) const {
+        if (!v.is_number()) fail(where, "must be a number");
+        const double d = v.get<double>();
+        if (!std::isfinite(d)) fail(where, "must be a finite number");
+        return d;
+    }
+    std::optional<double> optionalNumber(const json& obj, const std::string& path, const std::string& k) const {
+        auto it = obj.find(k);
+        if (it == obj.end() || it->is_null()) return std::nullopt;
+        return numberValue(*it, key(path, k));
+    }
+    size_t count(const json& obj, const std::string& path, const std::string& k, bool need = false) const {
+        auto it = obj.find(k);
+        if (it == obj.end()) {
+            if (need) fail(key(path, k), "missing");
+            return 0;
+        }
+        if (!it->is_number_integer() && !it->is_number_unsigned()) fail(key(path, k), "must be a whole number");
+        if (it->is_number_integer() && it->get<long long>() < 0) fail(key(path, k), "must not be negative");
+        return it->get<size_t>();
+    }
+    const json* array(const json& obj, const std::string& path, const std::string& k, bool need = false) const {
+        auto it = obj.find(k);
+        if (it == obj.end()) {
+            if (need) fail(key(path, k), "missing");
+            return nullptr;
+        }
+        if (!it->is_array()) fail(key(path, k), "must be a JSON array");
+        return &*it;
+    }
+    std::vector<std::string> texts(const json& obj, const std::string& path, const std::string& k) const {
+        std::vector<std::string> out;
+        if (const json* a = array(obj, path, k)) {
+            for (size_t i = 0; i < a->size(); ++i) {
+                if (!(*a)[i].is_string()) fail(index(key(path, k), i), "must be text (a JSON string)");
+                out.push_back((*a)[i].get<std::string>());
+            }
+        }
+        return out;
+    }
+
+private:
+    std::string source_;
+};
+
+Measurement readMeasurement(const Reader& r, const json& j, const std::string& path) {
+    r.object(j, path);
+    Measurement m;
+    m.id = r.text(j, path, "id", true);
+    if (m.id.empty()) r.fail(Reader::key(path, "id"), "must not be empty");
+    const std::string kind = r.text(j, path, "kind", true);
+    auto k = kindFromName(kind);
+    if (!k) r.fail(Reader::key(path, "kind"),
+                   "unknown measurement kind \"" + kind + "\" (caliper, depth marker, extent box, ellipse)");
+    m.kind = *k;
+    m.label = r.text(j, path, "label");
+    m.frame_index = r.count(j, path, "frame");
+    const std::string pk = Reader::key(path, "points_mm");
+    const json* pts = r.array(j, path, "points_mm", true);
+    if (pts->size() != pointCount(m.kind))
+        r.fail(pk, "a " + kind + " has " + std::to_string(pointCount(m.kind)) + " points, found " +
+                       std::to_string(pts->size()));
+    for (size_t i = 0; i < pts->size(); ++i) {
+        const json& p = (*pts)[i];
+        const std::string pi = Reader::index(pk, i);
+        if (!p.is_array() || p.size() != 2) r.fail(pi, "must be [x_mm, z_mm]");
+        m.points.push_back({r.numberValue(p[0], pi + "[0]"), r.numberValue(p[1], pi + "[1]")});
+    }
+    return m;
+}
+
+Finding readFinding(const Reader& r, const json& j, const std::string& path) {
+    r.object(j, path);
+    Finding f;
+    f.id = r.text(j, path, "id", true);
+    if (f.id.empty()) r.fail(Reader::key(path, "id"), "must not be empty");
+    const json& num = r.required(j, path, "number");
+    if (!num.is_number_integer()) r.fail(Reader::key(path, "number"), "must be a whole number");
+    f.number = num.get<int>();
+
+    const std::string ip = Reader::key(path, "indication");
+    const json& ind = r.object(r.required(j, path, "indication"), ip);
+    Indication& in = f.indication;
+    in.location = r.text(ind, ip, "location");
+    in.capture_index = r.count(ind, ip, "capture");
+    in.frame_index = r.count(ind, ip, "frame");
+    in.x_mm = r.optionalNumber(ind, ip, "x_mm");
+    in.depth_mm = r.optionalNumber(ind, ip, "depth_mm");
+    in.length_mm = r.optionalNumber(ind, ip, "length_mm");
+    in.height_mm = r.optionalNumber(ind, ip, "height_mm");
+    in.peak_db = r.optionalNumber(ind, ip, "peak_db");
+    in.reference = r.text(ind, ip, "reference");
+    in.measurement_ids = r.texts(ind, ip, "measurements");
+    in.description = r.text(ind, ip, "description");
+
+    if (j.contains("interpretation")) {
+        const std::string p = Reader::key(path, "interpretation");
+        const json& o = r.object(j["interpretation"], p);
+        const std::string name = r.text(o, p, "class");
+        if (!name.empty()) {
+            auto v = interpretationFromName(name);
+            if (!v) r.fail(Reader::key(p, "class"), "unknown interpretation \"" + name +
+                                                         "\" (unset, false, non-relevant, relevant)");
+            f.interpretation = *v;
+        }
+        f.interpretation_reason = r.text(o, p, "reason");
+    }
+    if (j.contains("evaluation")) {
+        const std::string p = Reader::key(path, "evaluation");
+        const json& o = r.object(j["evaluation"], p);
+        const std::string name = r.text(o, p, "outcome");
+        if (!name.empty()) {
+            auto v = evaluationFromName(name);
+            if (!v) r.fail(Reader::key(p, "outcome"), "unknown evaluation \"" + name +
+                                                           "\" (unset, acceptable, rejectable, refer-for-review)");
+            f.evaluation = *v;
+        }
+        f.criterion = r.text(o, p, "criterion");
+    }
+    return f;
+}
+
+std::string resolvedPath(const std::string& stored, const std::string& base_dir) {
+    if (stored.empty() || base_dir.empty()) return stored;
+    const fs::path p(stored);
+    if (p.is_absolute()) return stored;
+    return (fs::path(base_dir) / p).lexically_normal().string();
+}
+
+std::string folderOf(const std::string& path) {
+    std::error_code ec;
+    fs::path abs = fs::absolute(fs::path(path), ec);
+    if (ec) abs = fs::path(path);
+    return abs.parent_path().string();
+}
+
+std::string errnoText(int e) { return std::strerror(e); }
+
+}  // namespace
+
+std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
+    json j = json::object();
+    j["format"] = kFormatTag;
+    j["version"] = kCaseVersion;
+    j["title"] = doc.title;
+    j["background"] = doc.background;
+    j["technique"] = doc.technique;
+    j["pertinent_negatives"] = doc.pertinent_negatives;
+    j["prior_comparison"] = doc.prior_comparison;
+    j["active_capture"] = doc.active_capture;
+    json caps = json::array();
+    for (size_t i = 0; i < doc.captures.size(); ++i) {
+        const CaseCapture& c = doc.captures[i];
+        json cj = json::object();
+        cj["path"] = storedPath(c.path, base_dir);
+        cj["sha256"] = c.sha256;
+        if (c.recipe_json.empty()) {
+            cj["recipe"] = nullptr;
+        } else {
+            try {
+                cj["recipe"] = json::parse(c.recipe_json);
+            } catch (const json::exception& e) {
+                throw SettingError("capture " + std::to_string(i) + " (" + c.path +
+                                   "): its recipe is not valid JSON: " + e.what());
+            }
+        }
+        cj["view"] = json{{"frame", c.view.frame},
+                          {"zoom", c.view.zoom},
+                          {"centre_x_mm", c.view.centre_x_mm},
+                          {"centre_z_mm", c.view.centre_z_mm},
+                          {"tool", c.view.tool}};
+        json ms = json::array();
+        for (const auto& m : c.measurements) ms.push_back(measurementJson(m));
+        cj["measurements"] = ms;
+        caps.push_back(cj);
+    }
+    j["captures"] = caps;
+    json fs_ = json::array();
+    for (const auto& f : doc.findings) fs_.push_back(findingJson(f));
+    j["findings"] = fs_;
+    return j.dump(2) + "\n";
+}
+
+CaseDocument caseFromJson(const std::string& text, const std::string& source, const std::string& base_dir) {
+    Reader r(source);
+    json j;
+    try {
+        j = json::parse(text);
+    } catch (const json::parse_error& e) {
+        r.fail("", std::string("not valid JSON: ") + e.what());
+    }
+    r.object(j, "");
+    const std::string format = r.text(j, "", "format", true);
+    if (format != kFormatTag) r.fail("format", "is \"" + format + "\", expected \"" + kFormatTag + "\"");
+    const json& v = r.required(j, "", "version");
+    if (!v.is_number_integer()) r.fail("version", "must be a whole number");
+    const long long version = v.get<long long>();
+    if (version != kCaseVersion)
+        r.fail("version", "unknown case version " + std::to_string(version) + " (this program reads version " +
+                              std::to_string(kCaseVersion) + ")");
+
+    CaseDocument doc;
+    doc.version = kCaseVersion;
+    doc.title = r.text(j, "", "title");
+    doc.background = r.text(j, "", "background");
+    doc.technique = r.text(j, "", "technique");
+    doc.pertinent_negatives = r.texts(j, "", "pertinent_negatives");
+    doc.prior_comparison = r.text(j, "", "prior_comparison");
+    doc.active_capture = r.count(j, "", "active_capture");
+
+    if (const json* caps = r.array(j, "", "captures")) {
+        for (size_t i = 0; i < caps->size(); ++i) {
+            const std::string p = Reader::index("captures", i);
+            const json& cj = r.object((*caps)[i], p);
+            CaseCapture c;
+            c.path = resolvedPath(r.text(cj, p, "path", true), base_dir);
+            if (c.path.empty()) r.fail(Reader::key(p, "path"), "must not be empty");
+            c.sha256 = r.text(cj, p, "sha256", true);
+            if (c.sha256.size() != 64 || c.sha256.find_first_not_of("0123456789abcdef") != std::string::npos)
+                r.fail(Reader::key(p, "sha256"), "must be 64 lowercase hexadecimal digits");
+            if (cj.contains("recipe") && !cj["recipe"].is_null()) {
+                if (!cj["recipe"].is_object()) r.fail(Reader::key(p, "recipe"), "must be a JSON object or null");
+                c.recipe_json = cj["recipe"].dump(2);
+            }
+            if (cj.contains("view")) {
+                const std::string vp = Reader::key(p, "view");
+                const json& vj = r.object(cj["view"], vp);
+                c.view.frame = r.count(vj, vp, "frame");
+                c.view.zoom = r.number(vj, vp, "zoom", 1.0);
+                if (!(c.view.zoom > 0)) r.fail(Reader::key(vp, "zoom"), "must be positive");
+                c.view.centre_x_mm = r.number(vj, vp, "centre_x_mm", 0.0);
+                c.view.centre_z_mm = r.number(vj, vp, "centre_z_mm", 0.0);
+                c.view.tool = r.text(vj, vp, "tool");
+            }
+            if (const json* ms = r.array(cj, p, "measurements"))
+                for (size_t k = 0; k < ms->size(); ++k)
+                    c.measurements.push_back(readMeasurement(r, (*ms)[k], Reader::index(Reader::key(p, "measurements"), k)));
+            doc.captures.push_back(std::move(c));
+        }
+    }
+    if (!doc.captures.empty() && doc.active_capture >= doc.captures.size())
+        r.fail("active_capture", "is " + std::to_string(doc.active_capture) + " but there are only " +
+                                     std::to_string(doc.captures.size()) + " captures");
+    if (doc.captures.empty() && doc.active_capture != 0) r.fail("active_capture", "must be 0 when there are no captures");
+
+    if (const json* fj = r.array(j, "", "findings"))
+        for (size_t i = 0; i < fj->size(); ++i)
+            doc.findings.push_back(readFinding(r, (*fj)[i], Reader::index("findings", i)));
+    return doc;
+}
+
+void saveCase(const std::string& path, const CaseDocument& doc) {
+    const std::string folder = folderOf(path);
+    const std::string text = caseToJson(doc, folder);
+    // The temporary file sits beside the target so the final rename stays on one file system.
+    const std::string tmp = path + ".saving";
+    const int fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
+    if (fd < 0) {
+        const int e = errno;
+        throw InputError(path, "", "cannot be saved: cannot create temporary file " + tmp + ": " + errnoText(e));
+    }
+    auto failAndClean = [&](const std::string& what, int e) {
+        ::close(fd);
+        ::unlink(tmp.c_str());
+        throw InputError(path, "", "cannot be saved: " + what + ": " + errnoText(e));
+    };
+    size_t done = 0;
+    while (done < text.size()) {
+        const ssize_t n = ::write(fd, text.data() + done, text.size() - done);
+        if (n < 0) {
+            if (errno == EINTR) continue;
+            failAndClean("writing " + tmp, errno);
+        }
+        done += size_t(n);
+    }
+    if (::fsync(fd) != 0) failAndClean("flushing " + tmp + " to disk", errno);
+    if (::close(fd) != 0) {
+        const int e = errno;
+        ::unlink(tmp.c_str());
+        throw InputError(path, "", "cannot be saved: closing " + tmp + ": " + errnoText(e));
+    }
+    if (::rename(tmp.c_str(), path.c_str()) != 0) {
+        const int e = errno;
+        ::unlink(tmp.c_str());
+        throw InputError(path, "", "cannot be saved: renaming " + tmp + " over it: " + errnoText(e));
+    }
+    // Make the rename itself durable (best effort: some file systems refuse fsync on folders).
+    const int dfd = ::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+    if (dfd >= 0) {
+        (void)::fsync(dfd);
+        ::close(dfd);
+    }
+}
+
+CaseDocument loadCase(const std::string& path) {
+    std::error_code ec;
+    if (!fs::exists(path, ec)) throw InputError(path, "", "does not exist");
+    if (fs::is_directory(path, ec)) throw InputError(path, "", "is a folder, not a case file");
+    const auto size = fs::file_size(path, ec);
+    if (ec) throw InputError(path, "", "cannot be read: " + ec.message());
+    if (size > kMaxCaseBytes)
+        throw InputError(path, "", "is " + std::to_string(size) + " bytes; a case file is at most " +
+                                       std::to_string(kMaxCaseBytes) + " bytes");
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw InputError(path, "", "cannot be read");
+    std::ostringstream ss;
+    ss << in.rdbuf();
+    return caseFromJson(ss.str(), path, folderOf(path));
+}
+
+std::string autosavePath(const std::string& case_path) {
+    const std::string ext = ".umbracase";
+    const bool has_ext = case_path.size() >= ext.size() &&
+                         case_path.compare(case_path.size() - ext.size(), ext.size(), ext) == 0;
+    return case_path + (has_ext ? "" : ext) + ".autosave";
+}
+
+CaptureStatus checkCapture(const CaseCapture& capture) {
+    std::error_code ec;
+    if (capture.path.empty() || !fs::is_regular_file(capture.path, ec)) return CaptureStatus::Missing;
+    std::string hash;
+    try {
+        hash = fileSha256(capture.path);
+    } catch (const InputError&) {
+        return CaptureStatus::Missing;
+    }
+    return hash == capture.sha256 ? CaptureStatus::Ok : CaptureStatus::Changed;
+}
+
+bool relocateCapture(CaseCapture& capture, const std::string& new_path, bool accept_changed) {
+    std::error_code ec;
+    if (!fs::is_regular_file(new_path, ec)) throw InputError(new_path, "", "is not a readable file");
+    const std::string hash = fileSha256(new_path);
+    const bool match = hash == capture.sha256;
+    if (match) {
+        capture.path = new_path;
+    } else if (accept_changed) {
+        capture.path = new_path;
+        capture.sha256 = hash;
+    }
+    return match;
+}
 
 }  // namespace umbra::core
