@@ -1,0 +1,689 @@
+// SPDX-License-Identifier: MIT
+#include "ui/controller/case_controller.h"
+
+#include <QElapsedTimer>
+#include <QFileInfo>
+
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+#include <sstream>
+
+#include "core/error.h"
+#include "reconstruction/pipeline.h"
+#include "ui/controller/value_command.h"
+
+namespace umbra::ui {
+
+std::string findRecipeKey(const core::Recipe& r, const std::string& needle, bool display_only_only) {
+    for (const auto& st : r.stages())
+        for (const auto& p : st.params) {
+            if (display_only_only && !p.display_only) continue;
+            const std::string key = st.name + "." + p.name;
+            if (key.find(needle) != std::string::npos) return key;
+        }
+    return {};
+}
+
+CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new BeamformWorker(this)) {
+    recipe_ = recon::defaultRecipe();
+    connect(worker_, &BeamformWorker::frameReady, this, &CaseController::onFrameReady);
+    connect(worker_, &BeamformWorker::progress, this,
+            [this](quint64 gen, qulonglong frame, double f, bool background) {
+                if (gen != generation_) return;
+                emit progressChanged(f, background ? tr("Beamforming frame %1 for the top view").arg(frame + 1)
+                                                   : tr("Beamforming frame %1").arg(frame + 1));
+            });
+    connect(worker_, &BeamformWorker::failed, this, [this](quint64 gen, const QString& msg) {
+        if (gen != generation_) return;
+        setBusy(false);
+        emit errorOccurred(tr("Reconstruction failed: %1").arg(msg));
+    });
+    connect(worker_, &BeamformWorker::cancelled, this, [this](quint64 gen) {
+        if (gen != generation_) return;
+        setBusy(false);
+        emit statusMessage(tr("Reconstruction cancelled"));
+    });
+    connect(&undo_, &QUndoStack::cleanChanged, this, [this](bool) { emit dirtyChanged(isDirty()); });
+}
+
+CaseController::~CaseController() = default;
+
+// ---------------------------------------------------------------------------------- case
+
+void CaseController::resetState() {
+    ++generation_;
+    worker_->cancel();
+    reader_.reset();
+    capture_problem_.clear();
+    cache_.clear();
+    envelope_.reset();
+    db_.clear();
+    image_ = QImage();
+    top_image_ = QImage();
+    frame_ = 0;
+    selected_.clear();
+    fidelity_db_ = 0;
+    setBusy(false);
+}
+
+void CaseController::newCase() {
+    resetState();
+    doc_ = core::CaseDocument{};
+    case_path_.clear();
+    recipe_ = recon::defaultRecipe();
+    view_ = {};
+    undo_.clear();
+    extra_dirty_ = false;
+    emit caseChanged();
+    emit captureChanged();
+    emit recipeChanged();
+    emit imageChanged();
+    emit measurementsChanged();
+    emit findingsChanged();
+    emit topViewChanged();
+    emit dirtyChanged(false);
+}
+
+void CaseController::openCapture(const QString& path) {
+    auto reader = std::make_unique<core::CaptureReader>(path.toStdString());  // throws InputError
+    newCase();
+    core::CaseCapture cc;
+    cc.path = QFileInfo(path).absoluteFilePath().toStdString();
+    cc.sha256 = core::fileSha256(path.toStdString());
+    doc_.captures.push_back(cc);
+    doc_.active_capture = 0;
+    doc_.title = reader->header().title;
+    reader_ = std::move(reader);
+    openActiveCapture();
+    emit caseChanged();
+}
+
+void CaseController::addCapture(const QString& path) {
+    core::CaptureReader probe(path.toStdString());  // throws InputError
+    storeActiveState();
+    core::CaseCapture cc;
+    cc.path = QFileInfo(path).absoluteFilePath().toStdString();
+    cc.sha256 = core::fileSha256(path.toStdString());
+    doc_.captures.push_back(cc);
+    extra_dirty_ = true;
+    setActiveCapture(doc_.captures.size() - 1);
+    emit dirtyChanged(true);
+}
+
+void CaseController::openCase(const QString& path, bool from_autosave) {
+    const std::string src =
+        from_autosave ? core::autosavePath(path.toStdString()) : path.toStdString();
+    core::CaseDocument doc = core::loadCase(src);  // throws InputError
+    newCase();
+    doc_ = std::move(doc);
+    if (doc_.active_capture >= doc_.captures.size()) doc_.active_capture = 0;
+    case_path_ = QFileInfo(path).absoluteFilePath();
+    extra_dirty_ = from_autosave;
+    openActiveCapture();
+    emit caseChanged();
+    emit findingsChanged();
+    emit dirtyChanged(isDirty());
+}
+
+void CaseController::storeActiveState() {
+    if (doc_.captures.empty()) return;
+    auto& c = active();
+    c.recipe_json = recipe_.toJson();
+    view_.frame = frame_;
+    c.view = view_;
+}
+
+void CaseController::openActiveCapture() {
+    resetState();
+    recipe_ = recon::defaultRecipe();
+    if (doc_.captures.empty()) {
+        emit captureChanged();
+        return;
+    }
+    auto& c = active();
+    if (!c.recipe_json.empty()) {
+        try {
+            recipe_.mergeJson(c.recipe_json, c.path + " (recipe in case)");
+        } catch (const std::exception& e) {
+            emit errorOccurred(QString::fromStdString(e.what()));
+        }
+    }
+    view_ = c.view;
+    frame_ = c.view.frame;
+    // The demo case may leave the hash empty: it is filled at first open.
+    if (c.sha256.empty() && QFileInfo::exists(QString::fromStdString(c.path))) {
+        try {
+            c.sha256 = core::fileSha256(c.path);
+            extra_dirty_ = true;
+        } catch (const std::exception&) {
+        }
+    }
+    const auto status = core::checkCapture(c);
+    if (status == core::CaptureStatus::Missing) {
+        capture_problem_ = tr("The capture %1 is missing (moved, renamed or on a drive that is not mounted). "
+                              "Measurements and findings are kept; relocate the capture to see the image.")
+                               .arg(QString::fromStdString(c.path));
+    } else if (status == core::CaptureStatus::Changed) {
+        capture_problem_ = tr("The capture %1 has changed since the case was saved (its SHA-256 differs from %2). "
+                              "Measurements may no longer match the data; relocate the original capture.")
+                               .arg(QString::fromStdString(c.path), QString::fromStdString(c.sha256));
+    } else {
+        try {
+            reader_ = std::make_unique<core::CaptureReader>(c.path);
+        } catch (const std::exception& e) {
+            capture_problem_ = QString::fromStdString(e.what());
+        }
+    }
+    if (reader_ && frame_ >= frameCount()) frame_ = 0;
+    emit captureChanged();
+    emit recipeChanged();
+    emit measurementsChanged();
+    emit frameChanged(frame_);
+    emit imageChanged();
+    emit topViewChanged();
+    if (reader_) requestBeamform();
+}
+
+void CaseController::setActiveCapture(size_t index) {
+    if (index >= doc_.captures.size()) return;
+    storeActiveState();
+    doc_.active_capture = index;
+    undo_.clear();  // commands refer to the capture they were made on
+    openActiveCapture();
+}
+
+void CaseController::saveCase(const QString& path) {
+    const core::CaseDocument d = document();
+    core::saveCase(path.toStdString(), d);  // throws InputError
+    case_path_ = QFileInfo(path).absoluteFilePath();
+    doc_ = d;
+    extra_dirty_ = false;
+    undo_.setClean();
+    QFile::remove(QString::fromStdString(core::autosavePath(case_path_.toStdString())));
+    emit caseChanged();
+    emit dirtyChanged(false);
+}
+
+QString CaseController::autosave() {
+    if (case_path_.isEmpty()) return {};
+    const std::string p = core::autosavePath(case_path_.toStdString());
+    core::saveCase(p, document());
+    return QString::fromStdString(p);
+}
+
+core::CaseDocument CaseController::document() const {
+    core::CaseDocument d = doc_;
+    if (!d.captures.empty()) {
+        auto& c = d.captures[d.active_capture];
+        c.recipe_json = recipe_.toJson();
+        c.view = view_;
+        c.view.frame = frame_;
+    }
+    if (reader_) d.technique = techniqueText().toStdString();
+    return d;
+}
+
+QString CaseController::displayName() const {
+    if (!doc_.title.empty()) return QString::fromStdString(doc_.title);
+    if (!case_path_.isEmpty()) return QFileInfo(case_path_).completeBaseName();
+    if (!doc_.captures.empty()) return QFileInfo(QString::fromStdString(doc_.captures[0].path)).fileName();
+    return tr("Untitled case");
+}
+
+bool CaseController::isDirty() const { return extra_dirty_ || !undo_.isClean(); }
+
+void CaseController::markDirty() {
+    extra_dirty_ = true;
+    emit dirtyChanged(true);
+}
+
+void CaseController::setTitle(const QString& t) {
+    doc_.title = t.toStdString();
+    markDirty();
+    emit caseChanged();
+}
+
+void CaseController::setCaseText(const core::CaseDocument& t) {
+    doc_.title = t.title;
+    doc_.background = t.background;
+    doc_.pertinent_negatives = t.pertinent_negatives;
+    doc_.prior_comparison = t.prior_comparison;
+    markDirty();
+    emit caseChanged();
+}
+
+core::CaseCapture& CaseController::active() { return doc_.captures.at(doc_.active_capture); }
+const core::CaseCapture* CaseController::activeOrNull() const {
+    return doc_.captures.empty() ? nullptr : &doc_.captures[doc_.active_capture];
+}
+
+// ---------------------------------------------------------------------------------- capture
+
+const core::CaptureHeader& CaseController::header() const {
+    static const core::CaptureHeader none;
+    return reader_ ? reader_->header() : none;
+}
+
+QString CaseController::capturePath() const {
+    const auto* c = activeOrNull();
+    return c ? QString::fromStdString(c->path) : QString();
+}
+
+bool CaseController::relocateCapture(const QString& path, bool accept_changed, QString* why) {
+    if (doc_.captures.empty()) return false;
+    storeActiveState();
+    auto& c = active();
+    const std::string old_hash = c.sha256;
+    const bool ok = core::relocateCapture(c, QFileInfo(path).absoluteFilePath().toStdString(), accept_changed);
+    if (!ok && !accept_changed) {
+        if (why)
+            *why = tr("%1 is not the capture this case was made on: its SHA-256 differs from the recorded %2.")
+                       .arg(path, QString::fromStdString(old_hash));
+        return false;
+    }
+    markDirty();
+    const auto keep_measurements = c.measurements;
+    openActiveCapture();
+    return true;
+}
+
+std::vector<float> CaseController::rfTrace(size_t transmit, size_t receive) const {
+    if (!reader_) return {};
+    const auto& h = reader_->header();
+    if (transmit >= h.transmits() || receive >= h.receives() || frame_ >= h.frames) return {};
+    std::vector<float> block(h.blockSize());
+    reader_->readBlock(frame_, transmit, block.data());
+    return std::vector<float>(block.begin() + static_cast<long>(receive * h.samples),
+                              block.begin() + static_cast<long>((receive + 1) * h.samples));
+}
+
+// ---------------------------------------------------------------------------------- recipe
+
+void CaseController::editRecipeValue(const std::string& key, const std::string& value) {
+    core::Recipe next = recipe_;
+    next.set(key, value);  // throws SettingError
+    if (next == recipe_) return;
+    const auto& spec = recipe_.spec(key);
+    editRecipe(next, tr("Set %1 to %2").arg(QString::fromStdString(spec.label), QString::fromStdString(next.valueText(key))));
+}
+
+void CaseController::editRecipe(const core::Recipe& r, const QString& what) {
+    undo_.push(new RecipeEditCommand(what, recipe_, r, [this](const core::Recipe& v) { applyRecipe(v); }));
+}
+
+void CaseController::applyRecipe(const core::Recipe& r) {
+    const bool display_only = recipe_ == r || recipe_.differsOnlyInDisplay(r);
+    recipe_ = r;
+    emit recipeChanged();
+    if (!reader_) return;
+    if (display_only) {
+        rerender();
+        rebuildTopView();
+    } else {
+        ++generation_;
+        cache_.clear();
+        top_image_ = QImage();
+        emit topViewChanged();
+        requestBeamform();
+    }
+}
+
+// ---------------------------------------------------------------------------------- frames
+
+size_t CaseController::frameCount() const { return reader_ ? reader_->header().frames : 0; }
+
+bool CaseController::isEncodedScan() const {
+    return reader_ && reader_->header().scan && reader_->header().scan->position_m.size() > 1 &&
+           reader_->header().frames > 1;
+}
+
+QString CaseController::frameLabel(size_t f) const {
+    if (!reader_) return {};
+    const auto& h = reader_->header();
+    if (h.scan && f < h.scan->position_m.size()) return QStringLiteral("y = %1 mm").arg(h.scan->position_m[f] * 1e3, 0, 'f', 1);
+    if (h.scan && f < h.scan->time_s.size()) return QStringLiteral("t = %1 s").arg(h.scan->time_s[f], 0, 'f', 3);
+    return {};
+}
+
+void CaseController::setCurrentFrame(size_t f) {
+    if (!reader_ || f >= frameCount() || f == frame_) return;
+    frame_ = f;
+    emit frameChanged(f);
+    auto it = cache_.find(f);
+    if (it != cache_.end()) {
+        envelope_ = it->second;
+        rerender();
+    } else {
+        requestBeamform();
+    }
+}
+
+void CaseController::requestBeamform() {
+    if (!reader_) return;
+    setBusy(true);
+    const bool all = isEncodedScan();
+    worker_->request(generation_, reader_->path(), recipe_, frame_, all, frameCount());
+}
+
+void CaseController::cancelReconstruction() {
+    worker_->cancel();
+    setBusy(false);
+}
+
+void CaseController::setBusy(bool b) {
+    if (b == busy_) return;
+    busy_ = b;
+    emit busyChanged(b);
+}
+
+void CaseController::onFrameReady(quint64 gen, qulonglong frame, FramePtr img, double seconds, double fidelity,
+                                  bool background) {
+    if (gen != generation_ || !reader_) return;
+    fidelity_db_ = fidelity;
+    cache_[frame] = img;
+    if (frame == frame_) {
+        if (!background) beamform_s_ = seconds;
+        envelope_ = img;
+        setBusy(false);
+        emit statusMessage(tr("Beamformed frame %1 in %2 s").arg(frame + 1).arg(seconds, 0, 'f', 2));
+        rerender();
+    }
+    if (isEncodedScan()) rebuildTopView();
+}
+
+double CaseController::dynamicRangeDb() const {
+    const std::string k = findRecipeKey(recipe_, "dynamic_range");
+    return k.empty() ? 60.0 : recipe_.number(k);
+}
+
+std::string CaseController::colourMap() const {
+    for (const auto& st : recipe_.stages())
+        for (const auto& p : st.params)
+            if (p.kind == core::ParamKind::Choice && p.display_only &&
+                (p.name.find("map") != std::string::npos || st.name.find("colour") != std::string::npos))
+                return recipe_.text(st.name + "." + p.name);
+    const auto names = recon::colourMapNames();
+    return names.empty() ? std::string() : names.front();
+}
+
+namespace {
+QImage rgbToImage(const std::vector<uint8_t>& rgb, size_t nx, size_t nz) {
+    QImage img(static_cast<int>(nx), static_cast<int>(nz), QImage::Format_RGB888);
+    if (rgb.size() < nx * nz * 3) {
+        img.fill(Qt::black);
+        return img;
+    }
+    for (size_t z = 0; z < nz; ++z) std::memcpy(img.scanLine(static_cast<int>(z)), rgb.data() + z * nx * 3, nx * 3);
+    return img;
+}
+}  // namespace
+
+void CaseController::rerender() {
+    if (!envelope_ || !reader_) return;
+    QElapsedTimer t;
+    t.start();
+    try {
+        const core::Frame tgc = recon::applyTgc(*envelope_, reader_->header(), recipe_);
+        db_ = recon::logCompress(tgc, recipe_);
+        image_ = rgbToImage(recon::colourise(db_, recipe_), envelope_->nx(), envelope_->nz());
+    } catch (const std::exception& e) {
+        emit errorOccurred(QString::fromStdString(e.what()));
+        return;
+    }
+    render_ms_ = static_cast<double>(t.nsecsElapsed()) / 1e6;
+    emit imageChanged();
+}
+
+void CaseController::rebuildTopView() {
+    if (!reader_ || !isEncodedScan() || cache_.empty()) {
+        if (!top_image_.isNull()) {
+            top_image_ = QImage();
+            emit topViewChanged();
+        }
+        return;
+    }
+    const FramePtr any = cache_.begin()->second;
+    const size_t nx = any->nx(), nf = frameCount();
+    std::vector<float> peak(nf * nx, 0.0f);
+    std::vector<bool> have(nf, false);
+    float top = 0;
+    try {
+        const auto gain = recon::tgcGain(reader_->header(), recipe_, any->z_m);
+        for (const auto& [f, fr] : cache_) {
+            if (fr->nx() != nx || f >= nf) continue;
+            have[f] = true;
+            for (size_t z = 0; z < fr->nz(); ++z) {
+                const float g = z < gain.size() ? gain[z] : 1.0f;
+                const float* row = fr->envelope.data() + z * nx;
+                for (size_t x = 0; x < nx; ++x) peak[f * nx + x] = std::max(peak[f * nx + x], row[x] * g);
+            }
+        }
+        for (float v : peak) top = std::max(top, v);
+        const double dr = dynamicRangeDb();
+        std::vector<float> db(peak.size(), static_cast<float>(-dr));
+        for (size_t i = 0; i < peak.size(); ++i)
+            if (peak[i] > 0 && top > 0)
+                db[i] = static_cast<float>(std::clamp(20.0 * std::log10(peak[i] / top), -dr, 0.0));
+        top_image_ = rgbToImage(recon::colourise(db, recipe_), nx, nf);
+        for (size_t f = 0; f < nf; ++f)
+            if (!have[f])
+                for (size_t x = 0; x < nx; ++x) top_image_.setPixelColor(static_cast<int>(x), static_cast<int>(f), QColor(40, 44, 52));
+    } catch (const std::exception& e) {
+        emit errorOccurred(QString::fromStdString(e.what()));
+        return;
+    }
+    emit topViewChanged();
+}
+
+// ---------------------------------------------------------------------------------- measurements
+
+const std::vector<core::Measurement>& CaseController::measurements() const {
+    const auto* c = activeOrNull();
+    return c ? c->measurements : empty_;
+}
+
+core::UncertaintyModel CaseController::uncertaintyModel() const {
+    core::UncertaintyModel u;
+    if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1) {
+        u.pixel_x_mm = std::abs(envelope_->x_m[1] - envelope_->x_m[0]) * 1e3;
+        u.pixel_z_mm = std::abs(envelope_->z_m[1] - envelope_->z_m[0]) * 1e3;
+    }
+    u.speed_rel = 0.01;  // stated assumption: speed of sound known to 1 %
+    u.surface_z_mm = 0;  // the array face is the depth reference
+    return u;
+}
+
+const core::Measurement* CaseController::measurement(const std::string& id) const {
+    for (const auto& m : measurements())
+        if (m.id == id) return &m;
+    return nullptr;
+}
+
+void CaseController::setMeasurements(const std::vector<core::Measurement>& ms) {
+    if (doc_.captures.empty()) return;
+    active().measurements = ms;
+    if (!selected_.isEmpty() && !measurement(selected_.toStdString())) setSelectedMeasurement({});
+    emit measurementsChanged();
+}
+
+std::string CaseController::addMeasurement(core::Measurement m) {
+    if (doc_.captures.empty()) return {};
+    std::vector<std::string> ids;
+    for (const auto& c : doc_.captures)
+        for (const auto& x : c.measurements) ids.push_back(x.id);
+    for (const auto& f : doc_.findings) ids.insert(ids.end(), f.indication.measurement_ids.begin(), f.indication.measurement_ids.end());
+    m.id = core::nextMeasurementId(ids);
+    if (m.label.empty()) m.label = m.id;
+    auto after = measurements();
+    after.push_back(m);
+    undo_.push(new AddMeasurementCommand(tr("Add %1 %2").arg(QString::fromStdString(core::kindName(m.kind)), QString::fromStdString(m.id)),
+                                         measurements(), after, [this](const MeasurementList& v) { setMeasurements(v); }));
+    setSelectedMeasurement(QString::fromStdString(m.id));
+    return m.id;
+}
+
+void CaseController::moveMeasurement(const std::string& id, const std::vector<core::PointMm>& points) {
+    auto after = measurements();
+    for (auto& m : after)
+        if (m.id == id) {
+            if (m.points == points) return;
+            m.points = points;
+        }
+    undo_.push(new MoveMeasurementCommand(tr("Move %1").arg(QString::fromStdString(id)), measurements(), after,
+                                          [this](const MeasurementList& v) { setMeasurements(v); }));
+}
+
+void CaseController::deleteMeasurement(const std::string& id) {
+    auto after = measurements();
+    after.erase(std::remove_if(after.begin(), after.end(), [&](const auto& m) { return m.id == id; }), after.end());
+    if (after.size() == measurements().size()) return;
+    undo_.push(new DeleteMeasurementCommand(tr("Delete %1").arg(QString::fromStdString(id)), measurements(), after,
+                                            [this](const MeasurementList& v) { setMeasurements(v); }));
+}
+
+void CaseController::relabelMeasurement(const std::string& id, const std::string& label) {
+    auto after = measurements();
+    for (auto& m : after)
+        if (m.id == id) {
+            if (m.label == label) return;
+            m.label = label;
+        }
+    undo_.push(new RelabelMeasurementCommand(tr("Relabel %1").arg(QString::fromStdString(id)), measurements(), after,
+                                             [this](const MeasurementList& v) { setMeasurements(v); }));
+}
+
+void CaseController::setSelectedMeasurement(const QString& id) {
+    if (id == selected_) return;
+    selected_ = id;
+    emit selectionChanged(id);
+}
+
+// ---------------------------------------------------------------------------------- findings
+
+void CaseController::setFindings(const std::vector<core::Finding>& fs) {
+    doc_.findings = fs;
+    emit findingsChanged();
+}
+
+void CaseController::editFindings(const std::vector<core::Finding>& fs, const QString& what) {
+    if (fs == doc_.findings) return;
+    undo_.push(new FindingEditCommand(what, doc_.findings, fs, [this](const FindingList& v) { setFindings(v); }));
+}
+
+std::string CaseController::addFindingFromMeasurement(const std::string& measurement_id) {
+    const core::Measurement* m = measurement(measurement_id);
+    core::Finding f;
+    f.id = core::nextFindingId(doc_.findings);
+    f.number = 1;
+    for (const auto& x : doc_.findings) f.number = std::max(f.number, x.number + 1);
+    f.indication.capture_index = doc_.active_capture;
+    f.indication.frame_index = frame_;
+    if (m) {
+        f.indication.frame_index = m->frame_index;
+        f.indication.measurement_ids = {m->id};
+        double x0 = 1e300, x1 = -1e300, z0 = 1e300, z1 = -1e300;
+        for (const auto& p : m->points) {
+            x0 = std::min(x0, p.x_mm), x1 = std::max(x1, p.x_mm);
+            z0 = std::min(z0, p.z_mm), z1 = std::max(z1, p.z_mm);
+        }
+        if (m->kind == core::MeasurementKind::Ellipse && m->points.size() == 3) {
+            const auto& c = m->points[0];
+            const double a = std::hypot(m->points[1].x_mm - c.x_mm, m->points[1].z_mm - c.z_mm);
+            const double b = std::hypot(m->points[2].x_mm - c.x_mm, m->points[2].z_mm - c.z_mm);
+            const double r = std::max(a, b);
+            x0 = c.x_mm - r, x1 = c.x_mm + r, z0 = c.z_mm - r, z1 = c.z_mm + r;
+        }
+        f.indication.x_mm = (x0 + x1) / 2;
+        f.indication.depth_mm = z0;
+        if (m->kind != core::MeasurementKind::DepthMarker) {
+            f.indication.length_mm = x1 - x0;
+            f.indication.height_mm = z1 - z0;
+        }
+        // Peak of the displayed dB inside the measurement's bounding box.
+        if (envelope_ && m->frame_index == frame_ && !db_.empty()) {
+            const auto& xs = envelope_->x_m;
+            const auto& zs = envelope_->z_m;
+            float best = -1e30f;
+            const double pad = m->kind == core::MeasurementKind::DepthMarker ? 0.5 : 0.0;
+            for (size_t iz = 0; iz < zs.size(); ++iz) {
+                const double z = zs[iz] * 1e3;
+                if (z < z0 - pad || z > z1 + pad) continue;
+                for (size_t ix = 0; ix < xs.size(); ++ix) {
+                    const double x = xs[ix] * 1e3;
+                    if (m->kind != core::MeasurementKind::DepthMarker && (x < x0 || x > x1)) continue;
+                    best = std::max(best, db_[iz * xs.size() + ix]);
+                }
+            }
+            if (best > -1e29f) {
+                f.indication.peak_db = best;
+                f.indication.reference = "display reference of the frame (recipe log compression)";
+            }
+        }
+        std::ostringstream loc;
+        loc.setf(std::ios::fixed);
+        loc.precision(1);
+        loc << "frame " << (f.indication.frame_index + 1);
+        const QString fl = frameLabel(f.indication.frame_index);
+        if (!fl.isEmpty()) loc << " (" << fl.toStdString() << ")";
+        loc << ", x = " << *f.indication.x_mm << " mm, depth " << z0 << " mm";
+        f.indication.location = loc.str();
+    }
+    auto after = doc_.findings;
+    after.push_back(f);
+    editFindings(after, tr("Add finding %1").arg(f.number));
+    return f.id;
+}
+
+QString CaseController::techniqueText() const {
+    if (!reader_) return {};
+    const auto& h = reader_->header();
+    QStringList lines;
+    const bool fmc = h.transmit.kind == core::TransmitKind::SingleElement;
+    lines << tr("Array: %1 elements, pitch %2 mm, %3 MHz, %4 % bandwidth")
+                 .arg(h.array.elementCount())
+                 .arg(h.array.pitch_m() * 1e3, 0, 'f', 2)
+                 .arg(h.array.centre_frequency_hz / 1e6, 0, 'f', 2)
+                 .arg(h.array.fractional_bandwidth * 100, 0, 'f', 0);
+    lines << tr("Transmit: %1 × %2%3; sampling %4 MHz")
+                 .arg(QString::fromUtf8(core::toString(h.transmit.kind)))
+                 .arg(h.transmits())
+                 .arg(fmc ? tr(" (full matrix, total focusing)") : QString())
+                 .arg(h.receive.sampling_frequency_hz / 1e6, 0, 'f', 1);
+    lines << tr("Speed of sound: %1 m/s (assumed known to ±1 %)").arg(h.medium.speed_of_sound_m_s, 0, 'f', 0);
+    if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
+        lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
+                     .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)
+                     .arg(envelope_->x_m.front() * 1e3, 0, 'f', 1)
+                     .arg(envelope_->x_m.back() * 1e3, 0, 'f', 1)
+                     .arg(envelope_->z_m.front() * 1e3, 0, 'f', 1)
+                     .arg(envelope_->z_m.back() * 1e3, 0, 'f', 1)
+                     .arg(fidelity_db_, 0, 'f', 2);
+    QStringList tgc;
+    for (const auto& st : recipe_.stages())
+        if (st.name.find("tgc") != std::string::npos || st.name.find("gain") != std::string::npos)
+            for (const auto& p : st.params)
+                tgc << QStringLiteral("%1 %2%3").arg(QString::fromStdString(p.label),
+                                                     QString::fromStdString(recipe_.valueText(st.name + "." + p.name)),
+                                                     p.unit.empty() ? QString() : " " + QString::fromStdString(p.unit));
+    if (!tgc.isEmpty()) lines << tr("TCG: %1").arg(tgc.join(", "));
+    if (h.isSynthetic()) lines << tr("Data: synthetic demonstration data (simulated capture)");
+    return lines.join('\n');
+}
+
+QString CaseController::techniqueLine() const {
+    if (!reader_) return {};
+    const auto& h = reader_->header();
+    QString s = tr("%1 el. %2 MHz, %3 × %4, c = %5 m/s")
+                    .arg(h.array.elementCount())
+                    .arg(h.array.centre_frequency_hz / 1e6, 0, 'f', 1)
+                    .arg(QString::fromUtf8(core::toString(h.transmit.kind)))
+                    .arg(h.transmits())
+                    .arg(h.medium.speed_of_sound_m_s, 0, 'f', 0);
+    if (envelope_ && envelope_->nx() > 1)
+        s += tr(", grid %1 mm, fidelity %2 dB").arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3).arg(fidelity_db_, 0, 'f', 1);
+    s += tr(", DR %1 dB").arg(dynamicRangeDb(), 0, 'f', 0);
+    return s;
+}
+
+}  // namespace umbra::ui

@@ -1,0 +1,204 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// The workstation's document and controller: owns the case, the open capture, the recipe, the
+// beamforming worker, the frame cache and the undo stack. Widgets read from it and ask it to
+// change things; it emits typed change signals. Only this class calls reconstruction/.
+#include <QImage>
+#include <QObject>
+#include <QString>
+#include <QUndoStack>
+
+#include <map>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/capture.h"
+#include "core/capture_file.h"
+#include "core/case_file.h"
+#include "core/frame.h"
+#include "core/measurement.h"
+#include "core/parameters.h"
+#include "ui/controller/beamform_worker.h"
+
+namespace umbra::ui {
+
+class CaseController : public QObject {
+    Q_OBJECT
+public:
+    explicit CaseController(QObject* parent = nullptr);
+    ~CaseController() override;
+
+    // ------------------------------------------------------------------ case
+    /// Starts an empty, untitled case (no capture).
+    void newCase();
+    /// Starts a new case on the capture at `path`. Throws core::InputError naming the file.
+    void openCapture(const QString& path);
+    /// Adds a capture to the current case and makes it active. Throws core::InputError.
+    void addCapture(const QString& path);
+    /// Opens a case file (or its autosave when `from_autosave`: the case keeps `path` as its
+    /// name and is marked modified). Throws core::InputError. A missing or changed capture does
+    /// not throw: captureProblem() says what is wrong and the measurements and findings stay.
+    void openCase(const QString& path, bool from_autosave = false);
+    /// Saves atomically to `path` (becomes the case path). Throws core::InputError.
+    void saveCase(const QString& path);
+    /// Writes the autosave sibling of the case path (no-op for an untitled case); returns its path.
+    QString autosave();
+    /// Case document with the live recipe, view and measurements of the active capture folded in.
+    core::CaseDocument document() const;
+    QString casePath() const { return case_path_; }
+    /// Case title, or the case/capture file name when untitled.
+    QString displayName() const;
+    bool isDirty() const;
+    QUndoStack* undoStack() { return &undo_; }
+    void setTitle(const QString& t);
+    void setCaseText(const core::CaseDocument& texts);  ///< title, background, negatives, prior (undoable? no: marks dirty)
+
+    // ------------------------------------------------------------------ captures
+    bool hasCapture() const { return reader_ != nullptr; }
+    size_t captureCount() const { return doc_.captures.size(); }
+    size_t activeCapture() const { return doc_.active_capture; }
+    /// Switches the active capture of the case (keeps each capture's recipe, view, measurements).
+    void setActiveCapture(size_t index);
+    const core::CaptureHeader& header() const;
+    QString capturePath() const;
+    /// Empty when the capture is open; otherwise what is wrong, naming the path.
+    QString captureProblem() const { return capture_problem_; }
+    /// Points the active capture at `path`. Returns false (and an explanation) if its SHA-256
+    /// differs from the recorded one unless `accept_changed`. Throws core::InputError if unreadable.
+    bool relocateCapture(const QString& path, bool accept_changed, QString* why = nullptr);
+    /// RF trace of one transmit-receive pair of the current frame, physical units; empty if none.
+    std::vector<float> rfTrace(size_t transmit, size_t receive) const;
+
+    // ------------------------------------------------------------------ recipe
+    const core::Recipe& recipe() const { return recipe_; }
+    /// Undoable edit of one "stage.param" value. Throws core::SettingError on a bad value.
+    void editRecipeValue(const std::string& key, const std::string& value);
+    /// Undoable replacement of the whole recipe (e.g. "Load recipe").
+    void editRecipe(const core::Recipe& r, const QString& what);
+    /// Applies a recipe without an undo entry (used by undo commands).
+    void applyRecipe(const core::Recipe& r);
+
+    // ------------------------------------------------------------------ frames and images
+    size_t frameCount() const;
+    size_t currentFrame() const { return frame_; }
+    void setCurrentFrame(size_t f);
+    /// "y = 3.0 mm" (scan position) or "t = 0.10 s" for the frame, or "" when unknown.
+    QString frameLabel(size_t f) const;
+    bool isEncodedScan() const;
+    bool hasImage() const { return envelope_ != nullptr; }
+    /// Linear envelope of the current frame before TCG (x_m, z_m give the grid).
+    const core::Frame* envelope() const { return envelope_.get(); }
+    /// Displayed dB values of the current frame, [N_z][N_x], in [-dynamic range, 0].
+    const std::vector<float>& db() const { return db_; }
+    /// The current frame in colour (N_x by N_z pixels).
+    const QImage& image() const { return image_; }
+    /// Dynamic range of the display, dB (> 0).
+    double dynamicRangeDb() const;
+    std::string colourMap() const;
+    /// Milliseconds spent by the last display-only re-render (TCG, log, colour, QImage).
+    double lastRenderMs() const { return render_ms_; }
+    /// Seconds of the last foreground beamforming run (worker wall time).
+    double lastBeamformSeconds() const { return beamform_s_; }
+    double amplitudeFidelityDb() const { return fidelity_db_; }
+    bool isBusy() const { return busy_; }
+    void cancelReconstruction();
+    /// Number of Reconstructor runs started (tests: display-only edits must not add any).
+    long beamformRuns() const { return worker_->runs(); }
+
+    // ------------------------------------------------------------------ top view
+    /// Peak dB over depth for each frame (rows = frames in scan order, columns = x); valid rows
+    /// are those whose frame is beamformed.
+    const QImage& topViewImage() const { return top_image_; }
+    size_t topViewFramesDone() const { return cache_.size(); }
+
+    // ------------------------------------------------------------------ measurements
+    const std::vector<core::Measurement>& measurements() const;
+    core::UncertaintyModel uncertaintyModel() const;
+    /// Undoable. Returns the new id.
+    std::string addMeasurement(core::Measurement m);
+    void moveMeasurement(const std::string& id, const std::vector<core::PointMm>& points);
+    void deleteMeasurement(const std::string& id);
+    void relabelMeasurement(const std::string& id, const std::string& label);
+    void setMeasurements(const std::vector<core::Measurement>& ms);  ///< no undo (commands use it)
+    const core::Measurement* measurement(const std::string& id) const;
+    QString selectedMeasurement() const { return selected_; }
+    void setSelectedMeasurement(const QString& id);
+
+    // ------------------------------------------------------------------ findings
+    const std::vector<core::Finding>& findings() const { return doc_.findings; }
+    /// Undoable replacement of the findings list.
+    void editFindings(const std::vector<core::Finding>& fs, const QString& what);
+    void setFindings(const std::vector<core::Finding>& fs);  ///< no undo (commands use it)
+    /// New finding pre-filled from a measurement (location, sizes, peak dB). Returns its id.
+    std::string addFindingFromMeasurement(const std::string& measurement_id);
+    /// Technique block: array, frequency, transmits, speed of sound, grid, fidelity, TCG.
+    QString techniqueText() const;
+    /// One line for exported images.
+    QString techniqueLine() const;
+
+    // ------------------------------------------------------------------ view state
+    core::ViewState viewState() const { return view_; }
+    /// Stored with the case; the image view pushes it here (not an undoable edit).
+    void setViewState(const core::ViewState& v) { view_ = v; }
+
+signals:
+    void caseChanged();           ///< new/open/save: path, title or document replaced
+    void captureChanged();        ///< another capture (or none) is active
+    void recipeChanged();
+    void imageChanged();          ///< display image of the current frame replaced
+    void frameChanged(qulonglong frame);
+    void measurementsChanged();
+    void selectionChanged(QString id);
+    void findingsChanged();
+    void topViewChanged();
+    void busyChanged(bool busy);
+    void progressChanged(double fraction, QString what);
+    void dirtyChanged(bool dirty);
+    void errorOccurred(QString message);
+    void statusMessage(QString message);
+
+private:
+    void resetState();
+    void openActiveCapture();
+    void storeActiveState();
+    void requestBeamform();
+    void rerender();
+    void rebuildTopView();
+    void setBusy(bool b);
+    void markDirty();
+    void onFrameReady(quint64 gen, qulonglong frame, FramePtr img, double seconds, double fidelity, bool background);
+    core::CaseCapture& active();
+    const core::CaseCapture* activeOrNull() const;
+
+    core::CaseDocument doc_;
+    QString case_path_;
+    bool extra_dirty_ = false;
+    QUndoStack undo_;
+
+    std::unique_ptr<core::CaptureReader> reader_;
+    QString capture_problem_;
+    core::Recipe recipe_;
+    core::ViewState view_;
+    size_t frame_ = 0;
+    QString selected_;
+
+    BeamformWorker* worker_ = nullptr;
+    quint64 generation_ = 0;
+    std::map<size_t, FramePtr> cache_;
+    FramePtr envelope_;
+    std::vector<float> db_;
+    QImage image_;
+    QImage top_image_;
+    double render_ms_ = 0;
+    double beamform_s_ = 0;
+    double fidelity_db_ = 0;
+    bool busy_ = false;
+    std::vector<core::Measurement> empty_;
+};
+
+/// Key of the first recipe parameter whose stage or name contains `needle` ("" if none).
+std::string findRecipeKey(const core::Recipe& r, const std::string& needle, bool display_only_only = true);
+
+}  // namespace umbra::ui

@@ -1,0 +1,73 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Undo commands. Every edit is "replace a value with another": one generic template holds the
+// before/after values and a setter; one small class per kind of edit names it for the Edit
+// menu (and lets the undo stack tell kinds apart).
+#include <QUndoCommand>
+
+#include <functional>
+#include <utility>
+#include <vector>
+
+#include "core/finding.h"
+#include "core/measurement.h"
+#include "core/parameters.h"
+
+namespace umbra::ui {
+
+/// Generic "change a value" command: redo() applies `after`, undo() applies `before`.
+///
+///   stack->push(new ValueCommand<int>("Set answer", 41, 42, [&](const int& v) { x = v; }));
+template <typename T>
+class ValueCommand : public QUndoCommand {
+public:
+    using Setter = std::function<void(const T&)>;
+    ValueCommand(const QString& text, T before, T after, Setter setter)
+        : before_(std::move(before)), after_(std::move(after)), setter_(std::move(setter)) {
+        setText(text);
+    }
+    void redo() override { setter_(after_); }
+    void undo() override { setter_(before_); }
+    const T& before() const { return before_; }
+    const T& after() const { return after_; }
+
+protected:
+    T before_, after_;
+    Setter setter_;
+};
+
+using MeasurementList = std::vector<core::Measurement>;
+using FindingList = std::vector<core::Finding>;
+
+/// A recipe value (or a whole loaded recipe) changed.
+class RecipeEditCommand : public ValueCommand<core::Recipe> {
+public:
+    using ValueCommand::ValueCommand;
+};
+/// A measurement was added.
+class AddMeasurementCommand : public ValueCommand<MeasurementList> {
+public:
+    using ValueCommand::ValueCommand;
+};
+/// A measurement's points were dragged.
+class MoveMeasurementCommand : public ValueCommand<MeasurementList> {
+public:
+    using ValueCommand::ValueCommand;
+};
+/// A measurement was deleted.
+class DeleteMeasurementCommand : public ValueCommand<MeasurementList> {
+public:
+    using ValueCommand::ValueCommand;
+};
+/// A measurement's label changed.
+class RelabelMeasurementCommand : public ValueCommand<MeasurementList> {
+public:
+    using ValueCommand::ValueCommand;
+};
+/// A finding was added, edited or removed.
+class FindingEditCommand : public ValueCommand<FindingList> {
+public:
+    using ValueCommand::ValueCommand;
+};
+
+}  // namespace umbra::ui

@@ -1,0 +1,285 @@
+// SPDX-License-Identifier: MIT
+#include "ui/viewer/scene_painter.h"
+
+#include <QFontMetricsF>
+#include <QLinearGradient>
+#include <QPainterPath>
+
+#include <algorithm>
+#include <cmath>
+
+#include "reconstruction/pipeline.h"
+
+namespace umbra::ui {
+
+double niceStep(double span, int count) {
+    if (!(span > 0) || count < 1) return 1;
+    const double raw = span / count;
+    const double mag = std::pow(10.0, std::floor(std::log10(raw)));
+    const double n = raw / mag;
+    const double m = n < 1.5 ? 1 : n < 3.5 ? 2 : n < 7.5 ? 5 : 10;
+    return m * mag;
+}
+
+QMarginsF sceneMargins(const SceneStyle& s, int caption_lines) {
+    const double k = s.scale;
+    return QMarginsF(58 * k, 40 * k, (s.colour_bar ? 84 : 16) * k, (14 + 18 * caption_lines) * k);
+}
+
+QRectF imageArea(const QRectF& whole, const SceneStyle& style) {
+    return whole.marginsRemoved(sceneMargins(style, static_cast<int>(style.caption.size())));
+}
+
+QColor measurementColour(core::MeasurementKind kind) {
+    switch (kind) {
+        case core::MeasurementKind::Caliper: return QColor(120, 220, 255);
+        case core::MeasurementKind::DepthMarker: return QColor(255, 214, 102);
+        case core::MeasurementKind::ExtentBox: return QColor(140, 240, 160);
+        case core::MeasurementKind::Ellipse: return QColor(255, 150, 200);
+    }
+    return Qt::white;
+}
+
+std::vector<QPointF> measurementHandles(const core::Measurement& m) {
+    std::vector<QPointF> h;
+    for (const auto& p : m.points) h.emplace_back(p.x_mm, p.z_mm);
+    return h;
+}
+
+QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u) {
+    QString name = QString::fromStdString(m.label.empty() ? m.id : m.label);
+    std::vector<core::Quantity> q;
+    try {
+        q = core::evaluate(m, u);
+    } catch (const std::exception&) {
+        return name;
+    }
+    QStringList parts;
+    auto pick = [&](const char* n) {
+        for (const auto& x : q)
+            if (x.name == n) parts << QString::fromStdString(core::formatQuantity(x));
+    };
+    switch (m.kind) {
+        case core::MeasurementKind::Caliper: pick("distance"); break;
+        case core::MeasurementKind::DepthMarker: pick("depth"); break;
+        case core::MeasurementKind::ExtentBox: pick("length"); pick("height"); break;
+        case core::MeasurementKind::Ellipse: pick("axis 1"); pick("axis 2"); break;
+    }
+    if (parts.isEmpty() && !q.empty()) parts << QString::fromStdString(core::formatQuantity(q.back()));
+    return name + "  " + parts.join(" × ");
+}
+
+namespace {
+
+void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor& colour, double k) {
+    QFont f = p.font();
+    f.setPointSizeF(8.5 * k);
+    p.setFont(f);
+    QFontMetricsF fm(f);
+    QRectF r = fm.boundingRect(text).adjusted(-4 * k, -2 * k, 4 * k, 2 * k);
+    r.moveTopLeft(at + QPointF(8 * k, -r.height() - 4 * k));
+    p.setPen(Qt::NoPen);
+    p.setBrush(QColor(10, 12, 16, 200));
+    p.drawRoundedRect(r, 3 * k, 3 * k);
+    p.setPen(colour);
+    p.drawText(r, Qt::AlignCenter, text);
+}
+
+void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measurement& m, const Scene& sc, double k) {
+    const QColor col = measurementColour(m.kind);
+    const bool sel = QString::fromStdString(m.id) == sc.selected;
+    QPen pen(col, (sel ? 2.2 : 1.5) * k);
+    pen.setCosmetic(false);
+    p.setPen(pen);
+    p.setBrush(Qt::NoBrush);
+    std::vector<QPointF> px;
+    for (const auto& pt : m.points) px.push_back(vt.toPixel(QPointF(pt.x_mm, pt.z_mm)));
+    if (px.empty()) return;
+    QPointF label_at = px.back();
+    switch (m.kind) {
+        case core::MeasurementKind::Caliper:
+            if (px.size() >= 2) {
+                p.drawLine(px[0], px[1]);
+                // End ticks perpendicular to the line.
+                QPointF d = px[1] - px[0];
+                const double len = std::hypot(d.x(), d.y());
+                if (len > 0) {
+                    const QPointF n(-d.y() / len * 6 * k, d.x() / len * 6 * k);
+                    p.drawLine(px[0] - n, px[0] + n);
+                    p.drawLine(px[1] - n, px[1] + n);
+                }
+                label_at = (px[0] + px[1]) / 2;
+            }
+            break;
+        case core::MeasurementKind::DepthMarker: {
+            const QRectF img = vt.imageRectPx();
+            QPen dash = pen;
+            dash.setStyle(Qt::DashLine);
+            p.setPen(dash);
+            p.drawLine(QPointF(img.left(), px[0].y()), QPointF(img.right(), px[0].y()));
+            p.setPen(pen);
+            p.drawLine(px[0] + QPointF(-7 * k, 0), px[0] + QPointF(7 * k, 0));
+            p.drawLine(px[0] + QPointF(0, -7 * k), px[0] + QPointF(0, 7 * k));
+            break;
+        }
+        case core::MeasurementKind::ExtentBox:
+            if (px.size() >= 2) {
+                p.drawRect(QRectF(px[0], px[1]).normalized());
+                label_at = QPointF(std::max(px[0].x(), px[1].x()), std::min(px[0].y(), px[1].y()));
+            }
+            break;
+        case core::MeasurementKind::Ellipse:
+            if (px.size() >= 3) {
+                const QPointF c = px[0];
+                const QPointF a1 = px[1] - c, a2 = px[2] - c;
+                const double ra = std::hypot(a1.x(), a1.y()), rb = std::hypot(a2.x(), a2.y());
+                const double ang = std::atan2(a1.y(), a1.x()) * 180.0 / M_PI;
+                p.save();
+                p.translate(c);
+                p.rotate(ang);
+                p.drawEllipse(QPointF(0, 0), ra, rb);
+                p.restore();
+                QPen thin(col, 0.8 * k, Qt::DotLine);
+                p.setPen(thin);
+                p.drawLine(c - a1, c + a1);
+                p.drawLine(c - a2, c + a2);
+                p.setPen(pen);
+                label_at = c + QPointF(ra * 0.7, -rb * 0.7);
+            }
+            break;
+    }
+    // Handles.
+    p.setPen(QPen(QColor(10, 12, 16), 1 * k));
+    p.setBrush(sel ? Qt::white : col);
+    const double hs = (sel ? 4.0 : 3.0) * k;
+    for (const auto& h : px) p.drawRect(QRectF(h.x() - hs, h.y() - hs, 2 * hs, 2 * hs));
+    QString text = measurementLabel(m, sc.uncertainty);
+    auto it = sc.finding_numbers.find(m.id);
+    if (it != sc.finding_numbers.end()) text = QStringLiteral("F%1 · ").arg(it->second) + text;
+    drawLabel(p, label_at, text, sel ? Qt::white : col, k);
+}
+
+void drawColourBar(QPainter& p, const QRectF& bar, const Scene& sc, const SceneStyle& st) {
+    const double k = st.scale;
+    QImage grad(1, 256, QImage::Format_RGB888);
+    for (int i = 0; i < 256; ++i) {
+        uint8_t rgb[3] = {0, 0, 0};
+        try {
+            recon::colourAt(sc.colour_map, 1.0 - i / 255.0, rgb);
+        } catch (const std::exception&) {
+            rgb[0] = rgb[1] = rgb[2] = static_cast<uint8_t>(255 - i);
+        }
+        grad.setPixelColor(0, i, QColor(rgb[0], rgb[1], rgb[2]));
+    }
+    p.setRenderHint(QPainter::SmoothPixmapTransform, true);
+    p.drawImage(bar, grad);
+    p.setPen(QPen(st.axis, 1 * k));
+    p.setBrush(Qt::NoBrush);
+    p.drawRect(bar);
+    QFont f = p.font();
+    f.setPointSizeF(8 * k);
+    p.setFont(f);
+    const double dr = std::max(1.0, sc.dynamic_range_db);
+    const double step = dr <= 30 ? 6 : dr <= 60 ? 10 : 20;
+    for (double v = 0; v >= -dr - 1e-9; v -= step) {
+        const double y = bar.top() + (-v / dr) * bar.height();
+        p.drawLine(QPointF(bar.right(), y), QPointF(bar.right() + 4 * k, y));
+        p.drawText(QRectF(bar.right() + 6 * k, y - 8 * k, 40 * k, 16 * k), Qt::AlignLeft | Qt::AlignVCenter,
+                   QString::number(v, 'f', 0));
+    }
+    p.save();
+    p.translate(bar.left() - 6 * k, bar.center().y());
+    p.rotate(-90);
+    p.drawText(QRectF(-60 * k, -14 * k, 120 * k, 14 * k), Qt::AlignCenter, QStringLiteral("amplitude, dB"));
+    p.restore();
+}
+
+}  // namespace
+
+void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const Scene& sc, const SceneStyle& st) {
+    const double k = st.scale;
+    p.save();
+    p.setRenderHint(QPainter::Antialiasing, true);
+    p.fillRect(whole, st.background);
+    const QRectF area = vt.viewport();
+    QFont base = p.font();
+    base.setPointSizeF(8 * k);
+    p.setFont(base);
+
+    if (!sc.image || sc.image->isNull()) {
+        p.setPen(st.axis);
+        QFont f = base;
+        f.setPointSizeF(10.5 * k);
+        p.setFont(f);
+        p.drawText(whole.adjusted(40 * k, 40 * k, -40 * k, -40 * k), Qt::AlignCenter | Qt::TextWordWrap, sc.message);
+        p.restore();
+        return;
+    }
+
+    // Image, clipped to the image area.
+    const QRectF img = vt.imageRectPx();
+    p.save();
+    p.setClipRect(area);
+    p.fillRect(area, QColor(8, 9, 12));
+    p.setRenderHint(QPainter::SmoothPixmapTransform, vt.pixelsPerMm() * sc.extent_mm.width() / sc.image->width() < 6);
+    p.drawImage(img, *sc.image);
+    for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, k);
+    p.restore();
+
+    // Axes: x along the top (the array is there), depth down the left side.
+    p.setPen(QPen(st.axis, 1 * k));
+    p.drawRect(area);
+    const QPointF tl = vt.toMm(area.topLeft()), br = vt.toMm(area.bottomRight());
+    const double sx = niceStep(br.x() - tl.x(), std::max(2, static_cast<int>(area.width() / (70 * k))));
+    for (double x = std::ceil(tl.x() / sx) * sx; x <= br.x() + 1e-9; x += sx) {
+        const double px = vt.toPixel(QPointF(x, 0)).x();
+        p.drawLine(QPointF(px, area.top()), QPointF(px, area.top() - 5 * k));
+        p.drawText(QRectF(px - 30 * k, area.top() - 22 * k, 60 * k, 16 * k), Qt::AlignCenter,
+                   QString::number(std::abs(x) < 1e-9 ? 0.0 : x, 'g', 6));
+    }
+    const double sz = niceStep(br.y() - tl.y(), std::max(2, static_cast<int>(area.height() / (50 * k))));
+    for (double z = std::ceil(tl.y() / sz) * sz; z <= br.y() + 1e-9; z += sz) {
+        const double py = vt.toPixel(QPointF(0, z)).y();
+        p.drawLine(QPointF(area.left(), py), QPointF(area.left() - 5 * k, py));
+        p.drawText(QRectF(area.left() - 52 * k, py - 8 * k, 44 * k, 16 * k), Qt::AlignRight | Qt::AlignVCenter,
+                   QString::number(std::abs(z) < 1e-9 ? 0.0 : z, 'g', 6));
+    }
+    p.drawText(QRectF(area.left(), whole.top() + 2 * k, area.width(), 14 * k), Qt::AlignCenter, QStringLiteral("x, mm"));
+    p.save();
+    p.translate(whole.left() + 10 * k, area.center().y());
+    p.rotate(-90);
+    p.drawText(QRectF(-60 * k, -8 * k, 120 * k, 16 * k), Qt::AlignCenter, QStringLiteral("depth, mm"));
+    p.restore();
+
+    if (st.colour_bar) {
+        const QRectF bar(area.right() + 22 * k, area.top() + 4 * k, 14 * k, std::min(area.height() - 8 * k, 320 * k));
+        drawColourBar(p, bar, sc, st);
+    }
+    if (st.scale_bar) {
+        const double len_mm = niceStep(br.x() - tl.x(), 5);
+        const double len_px = len_mm * vt.pixelsPerMm();
+        const QPointF a(area.right() - 16 * k - len_px, area.bottom() - 16 * k);
+        p.setPen(Qt::NoPen);
+        p.setBrush(QColor(10, 12, 16, 190));
+        p.drawRoundedRect(QRectF(a.x() - 8 * k, a.y() - 20 * k, len_px + 16 * k, 30 * k), 3 * k, 3 * k);
+        p.setPen(QPen(Qt::white, 2.5 * k));
+        p.drawLine(a, a + QPointF(len_px, 0));
+        p.drawLine(a + QPointF(0, -4 * k), a + QPointF(0, 4 * k));
+        p.drawLine(a + QPointF(len_px, -4 * k), a + QPointF(len_px, 4 * k));
+        p.drawText(QRectF(a.x(), a.y() - 19 * k, len_px, 14 * k), Qt::AlignCenter, QStringLiteral("%1 mm").arg(len_mm));
+    }
+    if (!st.caption.isEmpty()) {
+        p.setPen(st.axis);
+        QFont f = base;
+        f.setPointSizeF(8.5 * k);
+        p.setFont(f);
+        double y = area.bottom() + 6 * k;
+        for (const auto& line : st.caption) {
+            p.drawText(QRectF(area.left(), y, whole.width() - area.left(), 16 * k), Qt::AlignLeft | Qt::AlignVCenter, line);
+            y += 18 * k;
+        }
+    }
+    p.restore();
+}
+
+}  // namespace umbra::ui

@@ -1,0 +1,65 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Draws the frame image with mm axes, the colour bar, measurements with labels and (for
+// exports) a scale bar and caption. Shared by the on-screen image view and the PNG export so
+// both look the same.
+#include <QColor>
+#include <QImage>
+#include <QPainter>
+#include <QRectF>
+#include <QString>
+#include <QStringList>
+
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/measurement.h"
+#include "ui/viewer/view_transform.h"
+
+namespace umbra::ui {
+
+/// Everything the painter needs, gathered by the caller.
+struct Scene {
+    const QImage* image = nullptr;          ///< colour frame, N_x by N_z pixels
+    QRectF extent_mm;                       ///< image edges, mm (x, depth)
+    double dynamic_range_db = 60;
+    std::string colour_map;
+    std::vector<core::Measurement> measurements;  ///< those on the shown frame
+    core::UncertaintyModel uncertainty;
+    QString selected;                               ///< selected measurement id
+    std::map<std::string, int> finding_numbers;     ///< measurement id -> finding number
+    QString message;                                ///< shown centred when there is no image
+};
+
+/// Layout and look of one rendering.
+struct SceneStyle {
+    double scale = 1.0;          ///< multiplies fonts, line widths and margins (exports)
+    bool colour_bar = true;
+    bool scale_bar = false;
+    QColor background{21, 23, 28};
+    QColor axis{200, 204, 212};
+    QStringList caption;         ///< lines under the image (exports)
+};
+
+/// Margins (pixels) around the image area for axes and the colour bar.
+QMarginsF sceneMargins(const SceneStyle& style, int caption_lines = 0);
+/// Rectangle left for the image inside `whole`.
+QRectF imageArea(const QRectF& whole, const SceneStyle& style);
+
+/// Paints the scene into `whole` (widget or export image) using `view` (its viewport must be
+/// imageArea(whole, style)).
+void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& view, const Scene& scene,
+                const SceneStyle& style);
+
+/// Short text for a measurement's label on the image: "M1  12.34 ± 0.12 mm".
+QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u);
+/// Colour of a measurement kind on the image.
+QColor measurementColour(core::MeasurementKind kind);
+/// "Nice" tick step (1, 2 or 5 × 10^n) for about `count` ticks over `span`.
+double niceStep(double span, int count);
+/// Handles (mm) a user can drag: the measurement's points.
+std::vector<QPointF> measurementHandles(const core::Measurement& m);
+
+}  // namespace umbra::ui
