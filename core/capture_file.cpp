@@ -15,7 +15,6 @@ namespace umbra::core {
 using namespace detail;
 
 namespace {
-constexpr size_t kMaxSmall = size_t(1) << 26;  // generous bound for header arrays
 
 std::vector<Vec3> toVec3(const std::vector<double>& v) {
     std::vector<Vec3> out(v.size() / 3);
@@ -27,6 +26,22 @@ std::vector<Vec3> toVec3(const std::vector<double>& v) {
 std::mutex& h5Mutex() {
     static std::mutex m;
     return m;
+}
+
+// Opens a group; a missing required group or an object of another kind is a problem.
+Hid openGroup(hid_t file, const char* path, bool required, std::vector<Problem>& P) {
+    if (!exists(file, path)) {
+        if (required) P.push_back({path, "group is missing"});
+        return Hid();
+    }
+    H5O_info_t info;
+    if (H5Oget_info_by_name2(file, path, &info, H5O_INFO_BASIC, H5P_DEFAULT) < 0 || info.type != H5O_TYPE_GROUP) {
+        P.push_back({path, "is not a group"});
+        return Hid();
+    }
+    Hid g(H5Gopen2(file, path, H5P_DEFAULT));
+    if (!g) P.push_back({path, "group cannot be opened (file damaged?)"});
+    return g;
 }
 
 struct HeaderParse {
@@ -55,10 +70,9 @@ void parseHeader(hid_t file, HeaderParse& out) {
 
     std::vector<hsize_t> dims;
     // Array
-    if (!exists(file, "/array")) add("/array", "group is missing");
-    else {
-        Hid g(H5Gopen2(file, "/array", H5P_DEFAULT));
-        auto pos = readDoubles(g.get(), "element_position_m", 2, kMaxSmall, dims, err);
+    if (Hid g = openGroup(file, "/array", true, P); g) {
+        // The bound is checked on the shape before anything is allocated.
+        auto pos = readDoubles(g.get(), "element_position_m", 2, 3 * CaptureLimits::max_elements, dims, err);
         if (!pos) add("/array/element_position_m", err);
         else if (dims[1] != 3) add("/array/element_position_m", "must have shape [N_el, 3]");
         else if (dims[0] > CaptureLimits::max_elements) add("/array/element_position_m", std::to_string(dims[0]) + " elements is beyond the limit");
@@ -74,9 +88,8 @@ void parseHeader(hid_t file, HeaderParse& out) {
     }
 
     // Transmit
-    if (!exists(file, "/transmit")) add("/transmit", "group is missing");
-    else {
-        Hid g(H5Gopen2(file, "/transmit", H5P_DEFAULT));
+    bool tx_ok = false;  // the transmit list was read (its length can be compared with /data/rf)
+    if (Hid g = openGroup(file, "/transmit", true, P); g) {
         auto kind = readStringAttr(g.get(), "kind", err);
         if (!kind) add("/transmit@kind", err.empty() ? "is missing" : err);
         else if (auto k = transmitKindFromString(*kind); !k)
@@ -85,33 +98,52 @@ void parseHeader(hid_t file, HeaderParse& out) {
             h.transmit.kind = *k;
             if (*k == TransmitKind::SingleElement) {
                 auto v = readInts(g.get(), "source_element", 1, CaptureLimits::max_transmits, dims, err);
-                if (!v) add("/transmit/source_element", err); else h.transmit.source_element = *v;
+                if (!v) add("/transmit/source_element", err); else { h.transmit.source_element = *v; tx_ok = true; }
             } else if (*k == TransmitKind::PlaneWave) {
                 auto v = readDoubles(g.get(), "angle_rad", 1, CaptureLimits::max_transmits, dims, err);
-                if (!v) add("/transmit/angle_rad", err); else h.transmit.angle_rad = *v;
+                if (!v) add("/transmit/angle_rad", err); else { h.transmit.angle_rad = *v; tx_ok = true; }
             } else {
                 auto v = readDoubles(g.get(), "virtual_source_m", 2, 3 * CaptureLimits::max_transmits, dims, err);
                 if (!v) add("/transmit/virtual_source_m", err);
                 else if (dims[1] != 3) add("/transmit/virtual_source_m", "must have shape [N_tx, 3]");
-                else h.transmit.virtual_source_m = toVec3(*v);
+                else { h.transmit.virtual_source_m = toVec3(*v); tx_ok = true; }
             }
         }
-        if (exists(g.get(), "delay_s")) {
-            auto v = readDoubles(g.get(), "delay_s", 2, kMaxSmall, dims, err);
-            if (!v) add("/transmit/delay_s", err); else h.transmit.delay_s = *v;
+        // Optional [N_tx, N_el] tables: the shape must match exactly (not only the value count),
+        // and nothing larger than that is ever allocated.
+        const size_t ntx = h.transmit.count(), nel = h.array.elementCount();
+        const size_t table_limit = std::max<size_t>(ntx, 1) * std::max<size_t>(nel, 1);
+        const std::string want = "shape must be [N_tx, N_el] = [" + std::to_string(ntx) + ", " + std::to_string(nel) + "]";
+        // Checks one table read (or failed) into `v`; true when it may be kept.
+        auto tableOk = [&](const char* where, bool read) {
+            if (!read) {
+                add(where, err.find("too large") != std::string::npos ? err + "; " + want : err);
+                return false;
+            }
+            if (dims[0] != ntx || dims[1] != nel) {
+                add(where, "has shape [" + std::to_string(dims[0]) + ", " + std::to_string(dims[1]) + "]; " + want);
+                return false;
+            }
+            return true;
+        };
+        // Without a readable transmit list and array there is nothing to check them against
+        // (that problem is reported already), so they are not read.
+        const bool can_check = tx_ok && nel > 0;
+        if (can_check && exists(g.get(), "delay_s")) {
+            auto v = readDoubles(g.get(), "delay_s", 2, table_limit, dims, err);
+            if (tableOk("/transmit/delay_s", v.has_value())) h.transmit.delay_s = *v;
         }
-        if (exists(g.get(), "apodization")) {
-            auto v = readFloats(g.get(), "apodization", 2, kMaxSmall, dims, err);
-            if (!v) add("/transmit/apodization", err); else h.transmit.apodization = *v;
+        if (can_check && exists(g.get(), "apodization")) {
+            auto v = readFloats(g.get(), "apodization", 2, table_limit, dims, err);
+            if (tableOk("/transmit/apodization", v.has_value())) h.transmit.apodization = *v;
         }
     }
 
     // Receive
-    if (!exists(file, "/receive")) add("/receive", "group is missing");
-    else {
-        Hid g(H5Gopen2(file, "/receive", H5P_DEFAULT));
+    bool rx_ok = false;
+    if (Hid g = openGroup(file, "/receive", true, P); g) {
         auto idx = readInts(g.get(), "element_index", 1, CaptureLimits::max_elements, dims, err);
-        if (!idx) add("/receive/element_index", err); else h.receive.element_index = *idx;
+        if (!idx) add("/receive/element_index", err); else { h.receive.element_index = *idx; rx_ok = true; }
         auto fs = readDoubleAttr(g.get(), "sampling_frequency_hz", err);
         if (!fs) add("/receive@sampling_frequency_hz", err.empty() ? "is missing" : err); else h.receive.sampling_frequency_hz = *fs;
         auto st = readDoubles(g.get(), "start_time_s", 1, CaptureLimits::max_transmits, dims, err);
@@ -119,9 +151,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
     }
 
     // Medium
-    if (!exists(file, "/medium")) add("/medium", "group is missing");
-    else {
-        Hid g(H5Gopen2(file, "/medium", H5P_DEFAULT));
+    if (Hid g = openGroup(file, "/medium", true, P); g) {
         auto c = readDoubleAttr(g.get(), "speed_of_sound_m_s", err);
         if (!c) add("/medium@speed_of_sound_m_s", err.empty() ? "is missing" : err); else h.medium.speed_of_sound_m_s = *c;
         if (auto v = readDoubleAttr(g.get(), "shear_speed_m_s", err)) h.medium.shear_speed_m_s = *v;
@@ -130,8 +160,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
         else if (!err.empty()) add("/medium@attenuation_db_per_cm_mhz", err);
         if (auto v = readDoubleAttr(g.get(), "thickness_m", err)) h.medium.thickness_m = *v;
         else if (!err.empty()) add("/medium@thickness_m", err);
-        if (exists(file, "/medium/wedge")) {
-            Hid w(H5Gopen2(file, "/medium/wedge", H5P_DEFAULT));
+        if (Hid w = openGroup(file, "/medium/wedge", false, P); w) {
             WedgeInfo wi;
             auto wc = readDoubleAttr(w.get(), "speed_of_sound_m_s", err);
             if (!wc) add("/medium/wedge@speed_of_sound_m_s", err.empty() ? "is missing" : err); else wi.speed_of_sound_m_s = *wc;
@@ -144,8 +173,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
     }
 
     // Scan, truth, provenance (optional)
-    if (exists(file, "/scan")) {
-        Hid g(H5Gopen2(file, "/scan", H5P_DEFAULT));
+    if (Hid g = openGroup(file, "/scan", false, P); g) {
         ScanInfo s;
         if (exists(g.get(), "position_m")) {
             auto v = readDoubles(g.get(), "position_m", 1, CaptureLimits::max_frames, dims, err);
@@ -157,8 +185,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
         }
         h.scan = s;
     }
-    if (exists(file, "/truth")) {
-        Hid g(H5Gopen2(file, "/truth", H5P_DEFAULT));
+    if (Hid g = openGroup(file, "/truth", false, P); g) {
         TruthInfo t;
         if (exists(g.get(), "scatterer_position_m")) {
             auto v = readDoubles(g.get(), "scatterer_position_m", 2, 3 * CaptureLimits::max_truth, dims, err);
@@ -173,8 +200,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
         if (auto f = readStringAttr(g.get(), "frame", err)) t.frame = *f;
         h.truth = t;
     }
-    if (exists(file, "/provenance")) {
-        Hid g(H5Gopen2(file, "/provenance", H5P_DEFAULT));
+    if (Hid g = openGroup(file, "/provenance", false, P); g) {
         H5O_info_t info;
         if (H5Oget_info2(g.get(), &info, H5O_INFO_NUM_ATTRS) >= 0 && info.num_attrs < 1000) {
             for (hsize_t i = 0; i < info.num_attrs; ++i) {
@@ -202,9 +228,9 @@ void parseHeader(hid_t file, HeaderParse& out) {
         if (d->size() != 4) { add("/data/rf", "has rank " + std::to_string(d->size()) + "; expected [N_frames, N_tx, N_rx, N_samples]"); return; }
         h.frames = (*d)[0];
         h.samples = (*d)[3];
-        if ((*d)[1] != h.transmit.count())
+        if (tx_ok && (*d)[1] != h.transmit.count())
             add("/data/rf", "has " + std::to_string((*d)[1]) + " transmit events; /transmit lists " + std::to_string(h.transmit.count()));
-        if ((*d)[2] != h.receive.element_index.size())
+        if (rx_ok && (*d)[2] != h.receive.element_index.size())
             add("/data/rf", "has " + std::to_string((*d)[2]) + " receive channels; /receive/element_index lists " + std::to_string(h.receive.element_index.size()));
         if (auto s = readDoubleAttr(ds.get(), "scale", err)) h.rf_scale = *s;
         else if (!err.empty()) add("/data/rf@scale", err);
@@ -430,6 +456,14 @@ void CaptureWriter::writeBlock(size_t frame, size_t transmit, const float* data)
     std::vector<int16_t> q;
     const void* src = data;
     hid_t mt = H5T_NATIVE_FLOAT;
+    std::vector<float> scaled;
+    if (h.sample_type == SampleType::Float32 && h.rf_scale != 1.0) {
+        // Stored values are in units of `scale` for float32 too (the reader multiplies back).
+        scaled.resize(n);
+        const double inv = 1.0 / h.rf_scale;
+        for (size_t i = 0; i < n; ++i) scaled[i] = float(double(data[i]) * inv);
+        src = scaled.data();
+    }
     if (h.sample_type == SampleType::Int16) {
         q.resize(n);
         const double inv = 1.0 / h.rf_scale;

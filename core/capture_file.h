@@ -57,8 +57,9 @@ public:
     CaptureWriter(const CaptureWriter&) = delete;
     CaptureWriter& operator=(const CaptureWriter&) = delete;
 
-    /// Writes one block [N_rx][N_samples] of physical values. For int16 captures the values
-    /// are divided by header.rf_scale and rounded (saturating).
+    /// Writes one block [N_rx][N_samples] of physical values (in rf_units). They are stored
+    /// divided by header.rf_scale (the file holds counts; physical = count x scale); for int16
+    /// captures also rounded and saturated to the int16 range.
     void writeBlock(size_t frame, size_t transmit, const float* data);
     void finish();
 

@@ -157,12 +157,18 @@ std::optional<std::vector<T>> readNumeric(hid_t loc, const std::string& name, in
         err = "has rank " + std::to_string(dims.size()) + " " + shapeText(dims) + "; expected rank " + std::to_string(rank);
         return std::nullopt;
     }
-    size_t n = 1;
+    // Product of the dimensions, checked against the limit before it can overflow.
+    size_t total = 1;
+    bool over = false;
     for (auto x : dims) {
-        if (x != 0 && n > max_elems / x) { err = "shape " + shapeText(dims) + " is absurdly large"; return std::nullopt; }
-        n *= x;
+        if (x != 0 && total > max_elems / x) { over = true; break; }
+        total *= x;
     }
-    if (n > max_elems) { err = "shape " + shapeText(dims) + " is absurdly large"; return std::nullopt; }
+    if (over || total > max_elems) {
+        err = "shape " + shapeText(dims) + " is too large (limit " + std::to_string(max_elems) + " values)";
+        return std::nullopt;
+    }
+    const size_t n = total;
     std::vector<T> v(n);
     if (n > 0 && H5Dread(ds.get(), memtype, H5S_ALL, H5S_ALL, H5P_DEFAULT, v.data()) < 0) {
         err = "cannot be read (file damaged or truncated?)";

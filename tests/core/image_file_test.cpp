@@ -1,0 +1,93 @@
+// SPDX-License-Identifier: MIT
+// Reconstructed image file (umbra_format "image", version 1): round trip of every name of the
+// contract (/image/envelope [N_frames, N_z, N_x] float32, /image/x_m, /image/z_m, root attrs
+// recipe_json and capture_sha256), and refusal of files that are not image files.
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+
+#include "core/capture_file.h"
+#include "core/error.h"
+#include "core/frame.h"
+#include "fixtures/known_capture.h"
+
+namespace fs = std::filesystem;
+using namespace umbra::core;
+
+namespace {
+
+struct TempDir {
+    fs::path path = fs::temp_directory_path() /
+                    ("umbra_img_" + std::to_string(::getpid()) + "_" +
+                     ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    TempDir() { fs::create_directories(path); }
+    ~TempDir() { std::error_code ec; fs::remove_all(path, ec); }
+    std::string file(const std::string& n) const { return (path / n).string(); }
+};
+
+ImageStack sampleStack() {
+    ImageStack s;
+    s.x_m = {-2e-3, -1e-3, 0.0, 1e-3, 2e-3};
+    s.z_m = {5e-3, 6e-3, 7e-3};
+    s.frames = 2;
+    for (size_t i = 0; i < s.frames * s.z_m.size() * s.x_m.size(); ++i) s.envelope.push_back(0.5f * float(i) + 0.125f);
+    s.recipe_json = R"({"das":{"f_number":2.0}})";
+    s.capture_sha256 = "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad";
+    return s;
+}
+
+TEST(ImageFile, RoundTrip) {
+    TempDir d;
+    const auto s = sampleStack();
+    const std::string path = d.file("img.h5");
+    writeImageFile(path, s);
+    EXPECT_FALSE(fs::exists(path + ".partial"));
+    const auto r = readImageFile(path);
+    EXPECT_EQ(r.x_m, s.x_m);
+    EXPECT_EQ(r.z_m, s.z_m);
+    EXPECT_EQ(r.frames, s.frames);
+    EXPECT_EQ(r.envelope, s.envelope);
+    EXPECT_EQ(r.recipe_json, s.recipe_json);
+    EXPECT_EQ(r.capture_sha256, s.capture_sha256);
+    // Frame i is the i-th [N_z][N_x] slab, row-major.
+    const Frame f = r.frame(1);
+    EXPECT_EQ(f.frame_index, 1u);
+    EXPECT_EQ(f.nx(), 5u);
+    EXPECT_EQ(f.nz(), 3u);
+    EXPECT_EQ(f.at(2, 4), s.envelope[15 + 2 * 5 + 4]);
+    EXPECT_EQ(f.peak(), s.envelope.back());
+}
+
+TEST(ImageFile, WriterRefusesInconsistentSizes) {
+    TempDir d;
+    auto s = sampleStack();
+    s.envelope.pop_back();
+    EXPECT_THROW(writeImageFile(d.file("bad.h5"), s), InputError);
+    EXPECT_FALSE(fs::exists(d.file("bad.h5")));
+}
+
+TEST(ImageFile, ReaderRefusesOtherFilesNamingThem) {
+    TempDir d;
+    const std::string text = d.file("notes.txt");
+    std::ofstream(text) << "not an image\n";
+    try {
+        readImageFile(text);
+        FAIL();
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.file(), text);
+    }
+    // A capture is not an image.
+    const std::string cap = (umbra::test::badCapturesDir() / "good.h5").string();
+    try {
+        readImageFile(cap);
+        FAIL();
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.file(), cap);
+        EXPECT_NE(std::string(e.what()).find("/@umbra_format"), std::string::npos) << e.what();
+    }
+    EXPECT_THROW(readImageFile(d.file("missing.h5")), InputError);
+    EXPECT_THROW(readImageFile(d.path.string()), InputError);
+}
+
+}  // namespace
