@@ -1,0 +1,42 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Analytic-signal stage: x(t) -> x(t) + j H{x}(t) by FFT (negative frequencies removed,
+// positive doubled; DC and Nyquist kept once), so delay-and-sum works on complex (I/Q)
+// samples and the envelope |.| is right for any transmit kind.
+#include <complex>
+#include <cstddef>
+#include <vector>
+
+#include "core/parameters.h"
+
+namespace umbra::recon {
+
+/// Declaration of the "analytic" stage (no parameters: always on, the envelope needs it).
+core::StageSpec analyticSpec();
+
+/// Reusable per-worker context for traces of a fixed length n: holds FFTW plans and buffers,
+/// so `run` allocates nothing. Construct and destroy on any thread (planning is serialised).
+class AnalyticSignal {
+public:
+    explicit AnalyticSignal(size_t n);
+    ~AnalyticSignal();
+    AnalyticSignal(const AnalyticSignal&) = delete;
+    AnalyticSignal& operator=(const AnalyticSignal&) = delete;
+    size_t size() const { return n_; }
+    /// Analytic signal of `in` (n real samples, any unit) into `out` (n complex samples,
+    /// interleaved re, im; same unit). `weights` (n/2+1 spectral weights, e.g. band-pass) or null.
+    void run(const float* in, float* out, const float* weights = nullptr);
+
+private:
+    size_t n_;
+    float* rin_;
+    void* spec_;  // fftwf_complex[n/2+1]
+    void* full_;  // fftwf_complex[n]
+    void* fwd_;   // fftwf_plan
+    void* bwd_;
+};
+
+/// Pure function: the analytic signal of one real trace (same length).
+std::vector<std::complex<float>> analyticSignal(const std::vector<float>& trace);
+
+}  // namespace umbra::recon

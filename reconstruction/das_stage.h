@@ -1,0 +1,58 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Delay-and-sum stage: total focusing method for full-matrix (single_element) captures
+// (Holmes, Drinkwater & Wilcox, NDT&E Int. 38 (2005) 701-711: delay (|r - tx| + |r - rx|) / c),
+// coherent compounding for plane_wave (Montaldo et al., IEEE TUFFC 56(3), 2009) and
+// virtual_source captures, on complex (analytic) samples. Receive apodization with a dynamic
+// aperture set by an f-number, transmit weighting, linear or cubic (4-point Lagrange)
+// interpolation, optional coherence-factor weighting (Hollman, Rigby & O'Donnell, IEEE
+// Ultrasonics Symposium 1999).
+#include <cstddef>
+#include <string>
+
+#include "core/parameters.h"
+
+namespace umbra::recon {
+
+struct DasParams {
+    std::string aperture = "f_number";  ///< "f_number": dynamic aperture z / F# centred on the pixel; "full": every element
+    double f_number = 1.0;              ///< receive (and, for full-matrix, transmit) f-number, > 0; default 1.0
+    std::string apodization = "hann";   ///< window across the aperture: "rectangular", "hann", "tukey"
+    double tukey_alpha = 0.5;           ///< tapered fraction of the Tukey window, [0, 1]; default 0.5
+    std::string transmit_weighting = "uniform";  ///< window over plane-wave angles / virtual sources: "uniform", "hann", "tukey"
+    std::string interpolation = "linear";        ///< complex-sample interpolation: "linear" or "cubic" (4-point Lagrange)
+    bool coherence_factor = false;               ///< multiply the image by the coherence factor
+    bool reciprocity = true;  ///< full-matrix: sum tx < rx pairs once, doubled, plus the diagonal (halves the work)
+    int tile_pixels = 1024;   ///< pixels per work tile (advanced; the image does not depend on it)
+};
+
+/// Declaration of the "das" stage.
+core::StageSpec dasSpec();
+/// The stage's values from a recipe, checked (f-number > 0 etc.; SettingError otherwise).
+DasParams dasParams(const core::Recipe& r);
+
+/// Window value at normalised aperture position u in [-1, 1] (0 at the centre; 0 outside).
+/// kind: "rectangular"/"uniform", "hann", "tukey" (alpha = tapered fraction).
+float apodizationWeight(const std::string& kind, double u, double alpha);
+
+namespace detail {
+/// Guard samples before sample 0 of each stored complex trace.
+constexpr size_t kTracePad = 2;
+/// Stored complex samples per trace of n samples (guards before and after).
+constexpr size_t traceStride(size_t n) { return n + kTracePad + 3; }
+
+/// Hot loop, linear interpolation. For pixel p: position q = base[p] + tof[p] (in stored
+/// samples, guards included), clamped to [1, hi]; value = linear interpolation of the
+/// interleaved complex trace `tr` at q; weight k * wt[p] * wr[p]; accumulated into (ar, ai).
+void dasLinear(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi, size_t n,
+               float* ar, float* ai);
+/// Same with 4-point Lagrange (cubic) interpolation.
+void dasCubic(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi, size_t n,
+              float* ar, float* ai);
+/// Same as dasLinear/dasCubic and also accumulates |weighted sample|^2 into s2 and the number
+/// of contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.
+void dasCoherence(bool cubic, const float* base, const float* tof, const float* wt, const float* wr, float k, float mult,
+                  const float* tr, float hi, size_t n, float* ar, float* ai, float* s2, float* cnt);
+}  // namespace detail
+
+}  // namespace umbra::recon

@@ -1,0 +1,79 @@
+// SPDX-License-Identifier: MIT
+#include "reconstruction/delay_model.h"
+
+#include <cmath>
+#include <string>
+
+#include "core/error.h"
+#include "reconstruction/detail/spec_helpers.h"
+
+namespace umbra::recon {
+
+core::StageSpec delayModelSpec() {
+    using namespace detail;
+    return {"delay_model",
+            "Delay model",
+            "Travel times from the array to each pixel (homogeneous medium).",
+            {choiceParam("model", "Medium model", "Travel-time model: homogeneous medium at one speed of sound.", {"homogeneous"},
+                         "homogeneous"),
+             realParam("speed_of_sound_m_s", "Speed of sound",
+                       "Speed of sound in the imaged medium, m/s; 0 = the capture's medium speed.", "m/s", 0, 20000, 0, false, 10)}};
+}
+
+DelayModelParams delayModelParams(const core::Recipe& r) {
+    DelayModelParams p;
+    p.speed_of_sound_m_s = r.number("delay_model.speed_of_sound_m_s");
+    p.model = r.text("delay_model.model");
+    return p;
+}
+
+HomogeneousDelayModel::HomogeneousDelayModel(double c) : c_(c) {
+    if (!(c > 0) || !std::isfinite(c)) throw core::SettingError("delay model: speed of sound must be positive, got " + std::to_string(c));
+}
+
+void HomogeneousDelayModel::pointTime(const core::Vec3& from, const float* x, const float* z, size_t n, float* t) const {
+    const float fx = float(from[0]), fy = float(from[1]), fz = float(from[2]);
+    const float fy2 = fy * fy;
+    const float inv = float(1.0 / c_);
+    for (size_t i = 0; i < n; ++i) {
+        const float dx = x[i] - fx, dz = z[i] - fz;
+        t[i] = std::sqrt(dx * dx + dz * dz + fy2) * inv;
+    }
+}
+
+void HomogeneousDelayModel::planeWaveTime(double a, const float* x, const float* z, size_t n, float* t) const {
+    const float ca = float(std::cos(a) / c_), sa = float(std::sin(a) / c_);
+    for (size_t i = 0; i < n; ++i) t[i] = z[i] * ca + x[i] * sa;
+}
+
+void HomogeneousDelayModel::virtualSourceTime(const core::Vec3& v, const float* x, const float* z, size_t n, float* t) const {
+    const double vr = std::sqrt(v[0] * v[0] + v[1] * v[1] + v[2] * v[2]);
+    pointTime(v, x, z, n, t);
+    const float base = float(vr / c_);
+    if (v[2] <= 0) {
+        for (size_t i = 0; i < n; ++i) t[i] = t[i] - base;
+    } else {
+        const float zv = float(v[2]);
+        for (size_t i = 0; i < n; ++i) t[i] = z[i] >= zv ? base + t[i] : base - t[i];
+    }
+}
+
+double resolvedSpeed(const core::CaptureHeader& h, const core::Recipe& r) {
+    double c = r.number("delay_model.speed_of_sound_m_s");
+    if (c < 0) throw core::SettingError("delay_model.speed_of_sound_m_s = " + std::to_string(c) + " m/s: a speed of sound cannot be negative");
+    if (c == 0) c = h.medium.speed_of_sound_m_s;
+    if (!(c >= 100 && c <= 20000))
+        throw core::SettingError("delay_model.speed_of_sound_m_s: speed of sound " + std::to_string(c) +
+                                 " m/s is outside [100, 20000] m/s (0 = from the capture)");
+    return c;
+}
+
+std::unique_ptr<DelayModel> makeDelayModel(const core::CaptureHeader& h, const core::Recipe& r) {
+    const double c = resolvedSpeed(h, r);
+    if (h.medium.wedge)
+        throw core::SettingError("delay model: the capture has a wedge (/medium/wedge); the layered model is not available yet, "
+                                 "only the homogeneous medium");
+    return std::make_unique<HomogeneousDelayModel>(c);
+}
+
+}  // namespace umbra::recon

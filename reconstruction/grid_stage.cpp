@@ -1,0 +1,56 @@
+// SPDX-License-Identifier: MIT
+#include "reconstruction/grid_stage.h"
+
+#include <cmath>
+
+#include "reconstruction/detail/spec_helpers.h"
+
+namespace umbra::recon {
+
+core::StageSpec gridSpec() {
+    using namespace detail;
+    const char* u = "mm";
+    return {"grid",
+            "Image grid",
+            "Region and pixel step of the image; 0/0 = automatic region, step 0 = automatic (amplitude fidelity within 2 dB).",
+            {realParam("x_min_mm", "x min", "Left edge of the region, mm (x_min = x_max = 0: the array's aperture).", u, -10000, 10000, 0,
+                       false, 1),
+             realParam("x_max_mm", "x max", "Right edge of the region, mm.", u, -10000, 10000, 0, false, 1),
+             realParam("z_min_mm", "z min", "Top of the region (depth), mm (z_min = z_max = 0: the recorded depth range).", u, -10000,
+                       10000, 0, false, 1),
+             realParam("z_max_mm", "z max", "Bottom of the region (depth), mm.", u, -10000, 10000, 0, false, 1),
+             realParam("step_mm", "Pixel step", "Pixel size, mm; 0 = automatic (worst-case point loss within 2 dB).", u, 0, 1000, 0, false,
+                       0.01)}};
+}
+
+GridParams gridParams(const core::Recipe& r) {
+    GridParams p;
+    p.x_min_mm = r.number("grid.x_min_mm");
+    p.x_max_mm = r.number("grid.x_max_mm");
+    p.z_min_mm = r.number("grid.z_min_mm");
+    p.z_max_mm = r.number("grid.z_max_mm");
+    p.step_mm = r.number("grid.step_mm");
+    return p;
+}
+
+PsfWidths pointSpreadWidths(double c, double f0, double B, double fnum) {
+    PsfWidths w;
+    const double T = 4 * std::log(2.0) / (M_PI * B * f0);
+    w.axial_m = c * T / 2;
+    w.lateral_m = 0.8859 * (c / f0) * fnum;
+    return w;
+}
+
+double gaussianHalfPixelLossDb(const PsfWidths& w, double step) {
+    const double h = step / 2;
+    const double k = 20 * std::log10(std::exp(1.0)) * 4 * std::log(2.0);
+    return k * h * h * (1 / (w.axial_m * w.axial_m) + 1 / (w.lateral_m * w.lateral_m));
+}
+
+double stepForLossDb(const PsfWidths& w, double limit) {
+    const double k = 20 * std::log10(std::exp(1.0)) * 4 * std::log(2.0);
+    const double s = 1 / (w.axial_m * w.axial_m) + 1 / (w.lateral_m * w.lateral_m);
+    return 2 * std::sqrt(limit / (k * s));
+}
+
+}  // namespace umbra::recon

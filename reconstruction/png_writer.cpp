@@ -1,0 +1,113 @@
+// SPDX-License-Identifier: MIT
+// PNG export of one frame: the colour-mapped image with mm axes, a title line and a colour bar.
+#include <opencv2/core.hpp>
+#include <opencv2/imgcodecs.hpp>
+#include <opencv2/imgproc.hpp>
+
+#include <cmath>
+#include <cstdio>
+
+#include "core/error.h"
+#include "reconstruction/pipeline.h"
+
+namespace umbra::recon {
+namespace {
+
+double niceStep(double span, int target) {
+    const double raw = span / std::max(1, target);
+    const double p = std::pow(10.0, std::floor(std::log10(raw)));
+    for (double m : {1.0, 2.0, 5.0, 10.0})
+        if (m * p >= raw) return m * p;
+    return 10 * p;
+}
+
+std::string num(double v) {
+    char b[32];
+    if (std::fabs(v) < 1e-9) v = 0;
+    std::snprintf(b, sizeof b, "%g", v);
+    return b;
+}
+
+}  // namespace
+
+void writePng(const std::string& path, const core::Frame& f, const core::Recipe& r, const std::string& title) {
+    const int nx = int(f.nx()), nz = int(f.nz());
+    if (nx == 0 || nz == 0) throw core::SettingError("PNG: the frame is empty");
+    const auto db = logCompress(f, r);
+    const auto rgb = colourise(db, r);
+    const double dr = r.number("log_compression.dynamic_range_db");
+    const std::string map = r.text("colour_map.map");
+    const bool invert = r.flag("colour_map.invert");
+
+    cv::Mat img(nz, nx, CV_8UC3);
+    for (int iz = 0; iz < nz; ++iz)
+        for (int ix = 0; ix < nx; ++ix) {
+            const size_t q = (size_t(iz) * size_t(nx) + size_t(ix)) * 3;
+            img.at<cv::Vec3b>(iz, ix) = cv::Vec3b(rgb[q + 2], rgb[q + 1], rgb[q]);  // BGR
+        }
+    // Square pixels; scale small images up so labels fit.
+    const double scale = std::max(1.0, std::min(4.0, 640.0 / std::max(nx, nz)));
+    const int W = int(std::lround(nx * scale)), H = int(std::lround(nz * scale));
+    cv::Mat shown;
+    cv::resize(img, shown, cv::Size(W, H), 0, 0, scale > 1 ? cv::INTER_NEAREST : cv::INTER_AREA);
+
+    const int left = 70, top = 46, right = 110, bottom = 50;
+    cv::Mat canvas(H + top + bottom, W + left + right, CV_8UC3, cv::Scalar(255, 255, 255));
+    shown.copyTo(canvas(cv::Rect(left, top, W, H)));
+    const cv::Scalar ink(0, 0, 0);
+    const int font = cv::FONT_HERSHEY_SIMPLEX;
+    const double fsz = 0.4;
+    cv::putText(canvas, title, cv::Point(8, 18), font, 0.45, ink, 1, cv::LINE_AA);
+    cv::rectangle(canvas, cv::Rect(left - 1, top - 1, W + 2, H + 2), ink, 1);
+
+    const double x0 = f.x_m.front() * 1e3, x1 = f.x_m.back() * 1e3, z0 = f.z_m.front() * 1e3, z1 = f.z_m.back() * 1e3;
+    auto colOf = [&](double xmm) { return left + (x1 > x0 ? (xmm - x0) / (x1 - x0) * (W - 1) : 0); };
+    auto rowOf = [&](double zmm) { return top + (z1 > z0 ? (zmm - z0) / (z1 - z0) * (H - 1) : 0); };
+    const double sx = niceStep(x1 - x0, 6), sz = niceStep(z1 - z0, 8);
+    for (double v = std::ceil(x0 / sx) * sx; v <= x1 + 1e-9; v += sx) {
+        const int c = int(std::lround(colOf(v)));
+        cv::line(canvas, cv::Point(c, top + H), cv::Point(c, top + H + 5), ink, 1);
+        const std::string s = num(v);
+        int base = 0;
+        auto sz2 = cv::getTextSize(s, font, fsz, 1, &base);
+        cv::putText(canvas, s, cv::Point(c - sz2.width / 2, top + H + 18), font, fsz, ink, 1, cv::LINE_AA);
+    }
+    cv::putText(canvas, "x (mm)", cv::Point(left + W / 2 - 20, top + H + 38), font, fsz, ink, 1, cv::LINE_AA);
+    for (double v = std::ceil(z0 / sz) * sz; v <= z1 + 1e-9; v += sz) {
+        const int rr = int(std::lround(rowOf(v)));
+        cv::line(canvas, cv::Point(left - 6, rr), cv::Point(left - 1, rr), ink, 1);
+        const std::string s = num(v);
+        int base = 0;
+        auto sz2 = cv::getTextSize(s, font, fsz, 1, &base);
+        cv::putText(canvas, s, cv::Point(left - 9 - sz2.width, rr + 4), font, fsz, ink, 1, cv::LINE_AA);
+    }
+    cv::putText(canvas, "z (mm)", cv::Point(4, top - 6), font, fsz, ink, 1, cv::LINE_AA);
+
+    // Colour bar: 0 dB at the top, -dynamic range at the bottom.
+    const int bx = left + W + 18, bw = 18;
+    for (int y = 0; y < H; ++y) {
+        double t = 1.0 - double(y) / std::max(1, H - 1);
+        if (invert) t = 1 - t;
+        uint8_t c[3];
+        colourAt(map, t, c);
+        cv::line(canvas, cv::Point(bx, top + y), cv::Point(bx + bw - 1, top + y), cv::Scalar(c[2], c[1], c[0]), 1);
+    }
+    cv::rectangle(canvas, cv::Rect(bx - 1, top - 1, bw + 2, H + 2), ink, 1);
+    const double sd = niceStep(dr, 6);
+    for (double v = 0; v <= dr + 1e-9; v += sd) {
+        const int y = top + int(std::lround(v / dr * (H - 1)));
+        cv::line(canvas, cv::Point(bx + bw, y), cv::Point(bx + bw + 4, y), ink, 1);
+        cv::putText(canvas, num(-v), cv::Point(bx + bw + 7, y + 4), font, fsz, ink, 1, cv::LINE_AA);
+    }
+    cv::putText(canvas, "dB", cv::Point(bx, top - 6), font, fsz, ink, 1, cv::LINE_AA);
+
+    bool ok = false;
+    try {
+        ok = cv::imwrite(path, canvas);
+    } catch (const cv::Exception& e) {
+        throw core::InputError(path, "", std::string("cannot write the PNG: ") + e.what());
+    }
+    if (!ok) throw core::InputError(path, "", "cannot write the PNG");
+}
+
+}  // namespace umbra::recon

@@ -1,0 +1,392 @@
+// SPDX-License-Identifier: MIT
+// Reconstructor: streams a capture frame in blocks of transmit events, makes the analytic
+// signal of every trace it needs, and beamforms pixel tiles in parallel. Each pixel belongs
+// to exactly one tile and its sum always runs transmit by transmit, receive by receive, so
+// the image does not depend on the number of threads or the tile size.
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <filesystem>
+#include <map>
+#include <mutex>
+#include <numeric>
+#include <thread>
+
+#include "core/error.h"
+#include "reconstruction/analytic_stage.h"
+#include "reconstruction/bandpass_stage.h"
+#include "reconstruction/das_stage.h"
+#include "reconstruction/delay_model.h"
+#include "reconstruction/detail/thread_pool.h"
+#include "reconstruction/envelope_stage.h"
+#include "reconstruction/grid_stage.h"
+#include "reconstruction/pipeline.h"
+
+namespace umbra::recon {
+namespace {
+
+using Clock = std::chrono::steady_clock;
+double since(Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); }
+
+// Working memory for one transmit block's analytic traces (complex float), bytes.
+constexpr size_t kBlockBudgetBytes = size_t(256) << 20;
+
+struct Tile {
+    size_t ix0, iz0, w, h, offset;
+    size_t n() const { return w * h; }
+};
+
+// The hash of a file is computed once per (path, size, modification time) in a process.
+std::string cachedSha256(const std::string& path) {
+    static std::mutex m;
+    static std::map<std::string, std::string> cache;
+    std::error_code ec;
+    const auto size = std::filesystem::file_size(path, ec);
+    const auto mtime = std::filesystem::last_write_time(path, ec).time_since_epoch().count();
+    const std::string key = path + "|" + std::to_string(size) + "|" + std::to_string(mtime);
+    std::lock_guard<std::mutex> lk(m);
+    auto it = cache.find(key);
+    if (it != cache.end()) return it->second;
+    std::string s = core::fileSha256(path);
+    cache[key] = s;
+    return s;
+}
+
+}  // namespace
+
+struct Reconstructor::Impl {
+    const core::CaptureReader& cap;
+    core::CaptureHeader h;
+    core::Recipe recipe;
+    Grid grid;
+    DasParams das;
+    std::unique_ptr<DelayModel> model;
+    std::vector<float> bp_weights;
+    Timings timings;
+    double fidelity_db = 0;
+    int threads = 1;
+    std::unique_ptr<detail::ThreadPool> pool;
+
+    size_t ns = 0, nrx = 0, ntx = 0, stride = 0, block_tx = 1;
+    double fs = 0;
+    bool reciprocity = false;
+    bool cubic = false;
+    std::vector<int32_t> rx_el;        // receive channel -> element
+    std::vector<int> slot_of_el;       // element -> slot in the tile tables (-1 unused)
+    std::vector<int32_t> used_el;      // slot -> element
+    std::vector<float> tx_weight;      // per transmit (plane wave / virtual source)
+    std::vector<Tile> tiles;
+    size_t tile_max = 0;
+
+    // Per-frame state.
+    std::vector<float> raw;  // [block_tx][nrx][ns]
+    std::vector<float> iq;   // [block_tx][nrx][stride][2], guards stay zero
+    std::vector<float> acc_re, acc_im, acc_s2, acc_n;  // tile-major
+
+    struct Worker {
+        std::unique_ptr<AnalyticSignal> analytic;
+        std::vector<float> x, z, tof, w, base, wt, ones;
+        std::vector<uint8_t> any;
+    };
+    std::vector<Worker> workers;
+
+    Impl(const core::CaptureReader& c, const core::Recipe& r, int nthreads) : cap(c), h(c.header()), recipe(r) {
+        das = dasParams(recipe);
+        model = makeDelayModel(h, recipe);
+        grid = resolveGrid(h, recipe);
+        fidelity_db = recon::amplitudeFidelityDb(h, recipe, grid);
+        ns = h.samples;
+        nrx = h.receives();
+        ntx = h.transmits();
+        fs = h.receive.sampling_frequency_hz;
+        if (ns == 0 || nrx == 0 || ntx == 0 || !(fs > 0)) throw core::InputError(c.path(), "/data/rf", "the capture holds no traces to reconstruct");
+        stride = detail::traceStride(ns);
+        cubic = das.interpolation == "cubic";
+        bp_weights = bandpassWeights(bandpassParams(recipe), ns, fs, h.array.centre_frequency_hz, h.array.fractional_bandwidth);
+        rx_el = h.receive.element_index;
+
+        // Elements that take part, and their slots in the per-tile tables.
+        const size_t nel = h.array.elementCount();
+        slot_of_el.assign(nel, -1);
+        auto use = [&](int32_t e) {
+            if (e < 0 || size_t(e) >= nel) throw core::InputError(c.path(), "/receive/element_index", "element index out of range");
+            if (slot_of_el[size_t(e)] < 0) {
+                slot_of_el[size_t(e)] = int(used_el.size());
+                used_el.push_back(e);
+            }
+        };
+        for (auto e : rx_el) use(e);
+        if (h.transmit.kind == core::TransmitKind::SingleElement)
+            for (auto e : h.transmit.source_element) use(e);
+
+        // Reciprocity: full matrix, one set of elements for transmit and receive, each once.
+        if (h.transmit.kind == core::TransmitKind::SingleElement && das.reciprocity && model->reciprocal()) {
+            std::vector<int32_t> a = h.transmit.source_element, b = rx_el;
+            std::sort(a.begin(), a.end());
+            std::sort(b.begin(), b.end());
+            reciprocity = a == b && std::adjacent_find(a.begin(), a.end()) == a.end();
+        }
+
+        // Transmit weighting over angles / virtual sources, by rank of the angle (or source x).
+        tx_weight.assign(ntx, 1.0f);
+        if (h.transmit.kind != core::TransmitKind::SingleElement && ntx > 1 && das.transmit_weighting != "uniform") {
+            std::vector<size_t> order(ntx);
+            std::iota(order.begin(), order.end(), 0);
+            auto key = [&](size_t t) {
+                return h.transmit.kind == core::TransmitKind::PlaneWave ? h.transmit.angle_rad[t] : h.transmit.virtual_source_m[t][0];
+            };
+            std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return key(a) < key(b); });
+            for (size_t k = 0; k < ntx; ++k) {
+                const double u = (double(k) - double(ntx - 1) / 2) / (double(ntx + 1) / 2);
+                tx_weight[order[k]] = apodizationWeight(das.transmit_weighting, u, das.tukey_alpha);
+            }
+        }
+
+        // Tiles: 2-D blocks (32 pixels wide) of about das.tile_pixels pixels.
+        const size_t nx = grid.nx(), nz = grid.nz();
+        const size_t tw = std::min<size_t>(nx, 32);
+        const size_t th = std::max<size_t>(1, size_t(das.tile_pixels) / tw);
+        size_t off = 0;
+        for (size_t iz = 0; iz < nz; iz += th)
+            for (size_t ix = 0; ix < nx; ix += tw) {
+                Tile t{ix, iz, std::min(tw, nx - ix), std::min(th, nz - iz), off};
+                off += t.n();
+                tile_max = std::max(tile_max, t.n());
+                tiles.push_back(t);
+            }
+
+        const size_t per_tx = nrx * stride * 2 * sizeof(float) + nrx * ns * sizeof(float);
+        block_tx = std::clamp<size_t>(kBlockBudgetBytes / std::max<size_t>(per_tx, 1), 1, ntx);
+
+        threads = nthreads > 0 ? nthreads : int(std::max(1u, std::thread::hardware_concurrency()));
+        threads = std::clamp(threads, 1, 256);
+        workers.resize(size_t(threads));
+        for (auto& w : workers) {
+            w.analytic = std::make_unique<AnalyticSignal>(ns);
+            const size_t ne = used_el.size();
+            w.x.resize(tile_max);
+            w.z.resize(tile_max);
+            w.tof.resize(ne * tile_max);
+            w.w.resize(ne * tile_max);
+            w.base.resize(tile_max);
+            w.wt.resize(tile_max);
+            w.ones.assign(tile_max, 1.0f);
+            w.any.resize(ne);
+        }
+        if (threads > 1) pool = std::make_unique<detail::ThreadPool>(threads);
+    }
+
+    void parallel(size_t count, const std::function<void(int, size_t)>& fn, const std::function<bool(size_t)>& on_caller) {
+        if (pool) {
+            pool->run(count, fn, on_caller);
+            return;
+        }
+        for (size_t i = 0; i < count; ++i) {
+            fn(0, i);
+            if (on_caller && on_caller(i + 1)) break;
+        }
+    }
+
+    // Aperture weight of element position xe for a pixel at (x, z).
+    float apertureWeight(double xe, double x, double z, double pitch, double xc, double half_len) const {
+        if (das.aperture == "full") {
+            if (das.apodization == "rectangular") return 1.0f;
+            return apodizationWeight(das.apodization, (xe - xc) / std::max(half_len, 1e-9), das.tukey_alpha);
+        }
+        const double half = std::max(std::max(z, 0.0) / (2 * das.f_number), pitch);
+        return apodizationWeight(das.apodization, (xe - x) / half, das.tukey_alpha);
+    }
+
+    void beamformTile(Worker& W, const Tile& T, size_t b0, size_t b1) {
+        const size_t n = T.n();
+        for (size_t j = 0; j < T.h; ++j)
+            for (size_t i = 0; i < T.w; ++i) {
+                W.x[j * T.w + i] = float(grid.x_min_m + double(T.ix0 + i) * grid.step_m);
+                W.z[j * T.w + i] = float(grid.z_min_m + double(T.iz0 + j) * grid.step_m);
+            }
+        const double pitch = std::max(h.array.pitch_m(), 1e-6);
+        double xlo = 1e300, xhi = -1e300;
+        for (auto e : used_el) {
+            xlo = std::min(xlo, h.array.element_position_m[size_t(e)][0]);
+            xhi = std::max(xhi, h.array.element_position_m[size_t(e)][0]);
+        }
+        const double xc = (xlo + xhi) / 2, half_len = (xhi - xlo) / 2 + pitch / 2;
+        const float ffs = float(fs);
+        for (size_t s = 0; s < used_el.size(); ++s) {
+            const auto& pos = h.array.element_position_m[size_t(used_el[s])];
+            float* tof = W.tof.data() + s * tile_max;
+            float* w = W.w.data() + s * tile_max;
+            model->pointTime(pos, W.x.data(), W.z.data(), n, tof);
+            bool any = false;
+            for (size_t p = 0; p < n; ++p) {
+                tof[p] *= ffs;
+                w[p] = apertureWeight(pos[0], W.x[p], W.z[p], pitch, xc, half_len);
+                any = any || w[p] > 0;
+            }
+            W.any[s] = any;
+        }
+        float* ar = acc_re.data() + T.offset;
+        float* ai = acc_im.data() + T.offset;
+        float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
+        float* cn = das.coherence_factor ? acc_n.data() + T.offset : nullptr;
+        const float hi = float(ns + detail::kTracePad);
+        for (size_t t = b0; t < b1; ++t) {
+            const float off = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs);
+            const float* wt = W.ones.data();
+            int32_t te = -1;
+            float kt = tx_weight[t];
+            switch (h.transmit.kind) {
+                case core::TransmitKind::SingleElement: {
+                    te = h.transmit.source_element[t];
+                    const int s = slot_of_el[size_t(te)];
+                    if (!W.any[size_t(s)]) continue;
+                    const float* tof = W.tof.data() + size_t(s) * tile_max;
+                    for (size_t p = 0; p < n; ++p) W.base[p] = tof[p] + off;
+                    wt = W.w.data() + size_t(s) * tile_max;
+                    break;
+                }
+                case core::TransmitKind::PlaneWave:
+                    model->planeWaveTime(h.transmit.angle_rad[t], W.x.data(), W.z.data(), n, W.base.data());
+                    for (size_t p = 0; p < n; ++p) W.base[p] = W.base[p] * ffs + off;
+                    break;
+                case core::TransmitKind::VirtualSource:
+                    model->virtualSourceTime(h.transmit.virtual_source_m[t], W.x.data(), W.z.data(), n, W.base.data());
+                    for (size_t p = 0; p < n; ++p) W.base[p] = W.base[p] * ffs + off;
+                    break;
+            }
+            if (kt == 0) continue;
+            for (size_t r = 0; r < nrx; ++r) {
+                const int32_t re = rx_el[r];
+                float mult = 1;
+                if (reciprocity) {
+                    if (re < te) continue;
+                    if (re > te) mult = 2;
+                }
+                const size_t s = size_t(slot_of_el[size_t(re)]);
+                if (!W.any[s]) continue;
+                const float* tr = iq.data() + ((t - b0) * nrx + r) * stride * 2;
+                const float* tof = W.tof.data() + s * tile_max;
+                const float* wr = W.w.data() + s * tile_max;
+                if (s2)
+                    detail::dasCoherence(cubic, W.base.data(), tof, wt, wr, kt * mult, mult, tr, hi, n, ar, ai, s2, cn);
+                else if (cubic)
+                    detail::dasCubic(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ar, ai);
+                else
+                    detail::dasLinear(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ar, ai);
+            }
+        }
+    }
+
+    bool needed(size_t t, size_t r) const {
+        if (!reciprocity) return true;
+        return rx_el[r] >= h.transmit.source_element[t];
+    }
+
+    core::Frame run(size_t frame, const Progress& progress) {
+        if (frame >= h.frames)
+            throw core::SettingError("frame " + std::to_string(frame) + " does not exist: the capture has " + std::to_string(h.frames) +
+                                     " frame(s)");
+        timings = Timings{};
+        const auto t_start = Clock::now();
+        double t_read = 0, t_analytic = 0, t_das = 0;
+        const size_t npix = grid.nx() * grid.nz();
+        acc_re.assign(npix, 0.0f);
+        acc_im.assign(npix, 0.0f);
+        if (das.coherence_factor) {
+            acc_s2.assign(npix, 0.0f);
+            acc_n.assign(npix, 0.0f);
+        }
+        const size_t bsz = std::min(block_tx, ntx);
+        raw.resize(bsz * nrx * ns);
+        if (iq.size() != bsz * nrx * stride * 2) iq.assign(bsz * nrx * stride * 2, 0.0f);
+
+        const size_t nblocks = (ntx + bsz - 1) / bsz;
+        const double units = double(nblocks * tiles.size());
+        size_t blocks_done = 0;
+        bool cancel = false;
+        auto poll = [&](size_t done_in_phase, double phase_units) {
+            if (progress.progress) progress.progress(std::min(1.0, (double(blocks_done * tiles.size()) + double(done_in_phase) * phase_units) / units));
+            if (progress.cancelled && progress.cancelled()) cancel = true;
+            return cancel;
+        };
+        std::vector<std::pair<size_t, size_t>> jobs;
+        for (size_t b0 = 0; b0 < ntx; b0 += bsz) {
+            const size_t b1 = std::min(ntx, b0 + bsz);
+            auto t0 = Clock::now();
+            for (size_t t = b0; t < b1; ++t) cap.readBlock(frame, t, raw.data() + (t - b0) * nrx * ns);
+            t_read += since(t0);
+            if (poll(0, 0)) break;
+
+            t0 = Clock::now();
+            jobs.clear();
+            for (size_t t = b0; t < b1; ++t)
+                for (size_t r = 0; r < nrx; ++r)
+                    if (needed(t, r)) jobs.emplace_back(t - b0, r);
+            const float* bw = bandpassParams(recipe).enabled ? bp_weights.data() : nullptr;
+            parallel(
+                jobs.size(),
+                [&](int w, size_t j) {
+                    const auto [tl, r] = jobs[j];
+                    workers[size_t(w)].analytic->run(raw.data() + (tl * nrx + r) * ns,
+                                                     iq.data() + ((tl * nrx + r) * stride + detail::kTracePad) * 2, bw);
+                },
+                [&](size_t) { return poll(0, 0); });
+            t_analytic += since(t0);
+            if (cancel) break;
+
+            t0 = Clock::now();
+            parallel(
+                tiles.size(), [&](int w, size_t i) { beamformTile(workers[size_t(w)], tiles[i], b0, b1); },
+                [&](size_t done) { return poll(done, 1.0); });
+            t_das += since(t0);
+            if (cancel) break;
+            ++blocks_done;
+        }
+        if (cancel) throw core::Cancelled();
+
+        auto t0 = Clock::now();
+        core::Frame f;
+        f.x_m = grid.xAxis();
+        f.z_m = grid.zAxis();
+        f.envelope.assign(npix, 0.0f);
+        const size_t nx = grid.nx();
+        for (const Tile& T : tiles)
+            for (size_t j = 0; j < T.h; ++j)
+                for (size_t i = 0; i < T.w; ++i) {
+                    const size_t q = T.offset + j * T.w + i;
+                    float e = std::sqrt(acc_re[q] * acc_re[q] + acc_im[q] * acc_im[q]);
+                    if (das.coherence_factor) e *= coherenceFactor(acc_re[q], acc_im[q], acc_s2[q], acc_n[q]);
+                    f.envelope[(T.iz0 + j) * nx + T.ix0 + i] = e;
+                }
+        const double t_env = since(t0);
+        f.recipe_json = recipe.toJson();
+        f.frame_index = frame;
+        t0 = Clock::now();
+        try {
+            f.capture_sha256 = cachedSha256(cap.path());
+        } catch (const core::InputError&) {
+            f.capture_sha256.clear();
+        }
+        const double t_hash = since(t0);
+        if (progress.progress) progress.progress(1.0);
+
+        timings.stage_seconds = {{"read", t_read},
+                                 {"band-pass + analytic signal", t_analytic},
+                                 {"delay-and-sum", t_das},
+                                 {"envelope", t_env},
+                                 {"capture hash", t_hash}};
+        timings.total_seconds = since(t_start);
+        timings.effective_terms = double(npix) * double(ntx) * double(nrx);
+        return f;
+    }
+};
+
+Reconstructor::Reconstructor(const core::CaptureReader& capture, const core::Recipe& recipe, int threads)
+    : impl_(new Impl(capture, recipe, threads)) {}
+Reconstructor::~Reconstructor() { delete impl_; }
+const Grid& Reconstructor::grid() const { return impl_->grid; }
+core::Frame Reconstructor::run(size_t frame, const Progress& progress) { return impl_->run(frame, progress); }
+const Timings& Reconstructor::lastTimings() const { return impl_->timings; }
+double Reconstructor::amplitudeFidelityDb() const { return impl_->fidelity_db; }
+
+}  // namespace umbra::recon
