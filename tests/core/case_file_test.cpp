@@ -1,0 +1,284 @@
+// SPDX-License-Identifier: MIT
+// The case file: round trip of every field, atomic save, capture checks by SHA-256, relative
+// capture paths, and clear errors for bad files.
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+#include "core/capture_file.h"
+#include "core/case_file.h"
+#include "core/error.h"
+
+using namespace umbra::core;
+namespace fs = std::filesystem;
+
+namespace {
+
+class TempDir {
+public:
+    TempDir() {
+        const auto* info = ::testing::UnitTest::GetInstance()->current_test_info();
+        path_ = fs::temp_directory_path() /
+                ("umbra-case-" + std::to_string(::getpid()) + "-" + info->name());
+        fs::remove_all(path_);
+        fs::create_directories(path_);
+    }
+    ~TempDir() {
+        std::error_code ec;
+        fs::permissions(path_, fs::perms::owner_all, fs::perm_options::add, ec);
+        fs::remove_all(path_, ec);
+    }
+    const fs::path& path() const { return path_; }
+
+private:
+    fs::path path_;
+};
+
+void writeFile(const fs::path& p, const std::string& bytes) {
+    fs::create_directories(p.parent_path());
+    std::ofstream(p, std::ios::binary) << bytes;
+}
+
+std::string readFile(const fs::path& p) {
+    std::ifstream in(p, std::ios::binary);
+    std::stringstream ss;
+    ss << in.rdbuf();
+    return ss.str();
+}
+
+// A case with every field set to something other than its default. The capture "files" are
+// synthetic bytes: the case only records their path and hash.
+CaseDocument fullCase(const fs::path& dir) {
+    const fs::path cap1 = dir / "data" / "weld-synthetic.h5";
+    const fs::path cap2 = dir / "data" / "block-synthetic.h5";
+    writeFile(cap1, "synthetic capture bytes one");
+    writeFile(cap2, "synthetic capture bytes two");
+
+    CaseDocument d;
+    d.title = "Synthetic weld W-12, demo";
+    d.background = "Routine check of a synthetic butt weld after repair.";
+    d.technique = "64-element array, 5 MHz, full-matrix capture; TFM, f-number 2.0";
+    d.pertinent_negatives = {"No root indications between x = -20 and 20 mm", "No transverse reflectors"};
+    d.prior_comparison = "Prior examination (synthetic) showed the same reflector at 11.9 mm.";
+    d.active_capture = 1;
+
+    CaseCapture c1;
+    c1.path = cap1.string();
+    c1.sha256 = fileSha256(cap1.string());
+    // A recipe as the recipe code writes it (ordered keys, 2-space indent).
+    c1.recipe_json = "{\n  \"das\": {\n    \"f_number\": 2.0,\n    \"mode\": \"tfm\"\n  },\n  \"log_compression\": {\n    \"dynamic_range_db\": 40.0\n  }\n}";
+    c1.view = {3, 2.5, -1.25, 12.5, "caliper"};
+    c1.measurements.push_back({"M1", MeasurementKind::Caliper, {{1, 2}, {4, 6}}, "root to cap", 3});
+    c1.measurements.push_back({"M2", MeasurementKind::DepthMarker, {{0.1, 12.3}}, "", 3});
+    c1.measurements.push_back({"M3", MeasurementKind::ExtentBox, {{-2, 10}, {2.5, 11.75}}, "box", 4});
+    c1.measurements.push_back({"M4", MeasurementKind::Ellipse, {{0, 10}, {5, 10}, {0, 13}}, "ellipse", 0});
+
+    CaseCapture c2;
+    c2.path = cap2.string();
+    c2.sha256 = fileSha256(cap2.string());
+    c2.view = {0, 1, 0.1 + 0.2, 1.0 / 3.0, ""};  // doubles that need all 17 digits
+
+    d.captures = {c1, c2};
+
+    Finding f1;
+    f1.id = "F1";
+    f1.number = 1;
+    f1.indication = {"frame 3 (y = 10.0 mm), x = 2.4 mm", 0, 3, 2.4, 12.3, 4.1, 1.75, 6.5,
+                     "Ø2.5 mm SDH at 10 mm (synthetic reference block)", {"M1", "M3"},
+                     "Planar reflector at the root, 4.1 mm long, 6.5 dB above reference."};
+    f1.interpretation = Interpretation::Relevant;
+    f1.interpretation_reason = "Seen from both sides at the same position.";
+    f1.evaluation = Evaluation::ReferForReview;
+    f1.criterion = "Length limit of the applicable written procedure (synthetic)";
+    Finding f2;
+    f2.id = "F3";
+    f2.number = 2;
+    f2.indication.location = "frame 0";
+    f2.indication.capture_index = 1;
+    f2.indication.description = "Echo at 30 mm, moves with the probe wedge.";
+    f2.interpretation = Interpretation::False;
+    f2.interpretation_reason = "Wedge echo";
+    d.findings = {f1, f2};
+    return d;
+}
+
+}  // namespace
+
+TEST(case_file_test, round_trip_keeps_every_field) {
+    TempDir t;
+    const CaseDocument d = fullCase(t.path());
+    const fs::path file = t.path() / "w12.umbracase";
+    saveCase(file.string(), d);
+    const CaseDocument back = loadCase(file.string());
+    EXPECT_EQ(back.title, d.title);
+    EXPECT_EQ(back.background, d.background);
+    EXPECT_EQ(back.technique, d.technique);
+    EXPECT_EQ(back.pertinent_negatives, d.pertinent_negatives);
+    EXPECT_EQ(back.prior_comparison, d.prior_comparison);
+    EXPECT_EQ(back.active_capture, d.active_capture);
+    ASSERT_EQ(back.captures.size(), 2u);
+    EXPECT_EQ(back.captures[0].recipe_json, d.captures[0].recipe_json);
+    EXPECT_EQ(back.captures[0].measurements, d.captures[0].measurements);
+    EXPECT_EQ(back.captures[1].view, d.captures[1].view);
+    EXPECT_EQ(back.findings, d.findings);
+    EXPECT_FALSE(back.findings[1].indication.peak_db.has_value());
+    EXPECT_TRUE(back == d);  // every field, including the ones not listed above
+    // Saving the loaded case again gives the same bytes.
+    EXPECT_EQ(caseToJson(back, t.path().string()), readFile(file));
+}
+
+TEST(case_file_test, capture_paths_are_stored_relative_to_the_case) {
+    TempDir t;
+    const CaseDocument d = fullCase(t.path());
+    const fs::path file = t.path() / "w12.umbracase";
+    saveCase(file.string(), d);
+    const std::string text = readFile(file);
+    EXPECT_NE(text.find("\"path\": \"data/weld-synthetic.h5\""), std::string::npos) << text;
+    EXPECT_EQ(text.find(t.path().string()), std::string::npos);
+    // A path outside the case folder is reached with "../".
+    EXPECT_NE(caseToJson(d, (t.path() / "cases").string()).find("\"../data/weld-synthetic.h5\""), std::string::npos);
+}
+
+TEST(case_file_test, moving_the_whole_folder_keeps_captures_found) {
+    TempDir t;
+    const fs::path a = t.path() / "a", b = t.path() / "b";
+    const CaseDocument d = fullCase(a);
+    saveCase((a / "w12.umbracase").string(), d);
+    fs::rename(a, b);
+    const CaseDocument back = loadCase((b / "w12.umbracase").string());
+    EXPECT_EQ(fs::path(back.captures[0].path), b / "data" / "weld-synthetic.h5");
+    EXPECT_EQ(checkCapture(back.captures[0]), CaptureStatus::Ok);
+    EXPECT_EQ(checkCapture(back.captures[1]), CaptureStatus::Ok);
+}
+
+TEST(case_file_test, moved_capture_is_missing_and_can_be_relocated) {
+    TempDir t;
+    CaseDocument d = fullCase(t.path());
+    saveCase((t.path() / "w12.umbracase").string(), d);
+    const fs::path moved = t.path() / "elsewhere" / "renamed.h5";
+    fs::create_directories(moved.parent_path());
+    fs::rename(d.captures[0].path, moved);
+    CaseDocument back = loadCase((t.path() / "w12.umbracase").string());
+    EXPECT_EQ(checkCapture(back.captures[0]), CaptureStatus::Missing);
+    // Pointing it at a different file is refused (hash differs) and changes nothing.
+    const std::string old_path = back.captures[0].path;
+    EXPECT_FALSE(relocateCapture(back.captures[0], back.captures[1].path));
+    EXPECT_EQ(back.captures[0].path, old_path);
+    // Pointing it at the moved file succeeds.
+    EXPECT_TRUE(relocateCapture(back.captures[0], moved.string()));
+    EXPECT_EQ(back.captures[0].path, moved.string());
+    EXPECT_EQ(checkCapture(back.captures[0]), CaptureStatus::Ok);
+    EXPECT_THROW(relocateCapture(back.captures[0], (t.path() / "nope.h5").string()), InputError);
+}
+
+TEST(case_file_test, changed_capture_is_detected) {
+    TempDir t;
+    CaseDocument d = fullCase(t.path());
+    EXPECT_EQ(checkCapture(d.captures[0]), CaptureStatus::Ok);
+    writeFile(d.captures[0].path, "synthetic capture bytes onE");  // one byte differs
+    EXPECT_EQ(checkCapture(d.captures[0]), CaptureStatus::Changed);
+    const std::string old_hash = d.captures[0].sha256;
+    EXPECT_FALSE(relocateCapture(d.captures[0], d.captures[0].path));
+    EXPECT_EQ(d.captures[0].sha256, old_hash);
+    EXPECT_FALSE(relocateCapture(d.captures[0], d.captures[0].path, /*accept_changed=*/true));
+    EXPECT_NE(d.captures[0].sha256, old_hash);
+    EXPECT_EQ(checkCapture(d.captures[0]), CaptureStatus::Ok);
+}
+
+// SHA-256 of "abc" from FIPS 180-2, Appendix B.1: the hash the case records is the standard one.
+TEST(case_file_test, recorded_hash_is_standard_sha256) {
+    TempDir t;
+    writeFile(t.path() / "abc.bin", "abc");
+    EXPECT_EQ(fileSha256((t.path() / "abc.bin").string()),
+              "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+}
+
+TEST(case_file_test, failed_save_leaves_the_old_file_intact) {
+    TempDir t;
+    CaseDocument d = fullCase(t.path());
+    const fs::path file = t.path() / "w12.umbracase";
+    saveCase(file.string(), d);
+    const std::string before = readFile(file);
+    // Make the temporary file impossible to create: a folder stands in its place.
+    fs::create_directories(file.string() + ".saving");
+    d.title = "changed";
+    try {
+        saveCase(file.string(), d);
+        FAIL() << "expected InputError";
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.file(), file.string());
+    }
+    EXPECT_EQ(readFile(file), before);
+    EXPECT_EQ(loadCase(file.string()).title, "Synthetic weld W-12, demo");
+    fs::remove(file.string() + ".saving");
+    saveCase(file.string(), d);
+    EXPECT_EQ(loadCase(file.string()).title, "changed");
+    EXPECT_FALSE(fs::exists(file.string() + ".saving"));  // no temporary file left behind
+}
+
+TEST(case_file_test, read_only_folder_save_fails_cleanly) {
+    if (::geteuid() == 0) GTEST_SKIP() << "root ignores folder permissions";
+    TempDir t;
+    CaseDocument d = fullCase(t.path());
+    const fs::path dir = t.path() / "ro";
+    fs::create_directories(dir);
+    const fs::path file = dir / "w12.umbracase";
+    saveCase(file.string(), d);
+    const std::string before = readFile(file);
+    fs::permissions(dir, fs::perms::owner_read | fs::perms::owner_exec);
+    d.title = "changed";
+    EXPECT_THROW(saveCase(file.string(), d), InputError);
+    fs::permissions(dir, fs::perms::owner_all);
+    EXPECT_EQ(readFile(file), before);
+}
+
+TEST(case_file_test, bad_files_give_errors_naming_file_and_key) {
+    TempDir t;
+    const fs::path file = t.path() / "bad.umbracase";
+    auto where = [&](const std::string& text) -> std::string {
+        writeFile(file, text);
+        try {
+            loadCase(file.string());
+        } catch (const InputError& e) {
+            EXPECT_EQ(e.file(), file.string());
+            EXPECT_NE(std::string(e.what()).find(file.string()), std::string::npos);
+            return e.problems().at(0).where + " | " + e.problems().at(0).what;
+        }
+        return "no error";
+    };
+    EXPECT_NE(where("{\"format\": \"umbracase\", ").find("not valid JSON"), std::string::npos);
+    EXPECT_NE(where("[1, 2]").find("must be a JSON object"), std::string::npos);
+    EXPECT_EQ(where("{\"format\": \"umbracase\", \"version\": 2}").rfind("version | unknown case version 2", 0), 0u);
+    EXPECT_EQ(where("{\"format\": \"other\", \"version\": 1}").rfind("format |", 0), 0u);
+    EXPECT_EQ(where("{\"format\": \"umbracase\"}"), "version | missing");
+
+    const std::string good = caseToJson(fullCase(t.path()), t.path().string());
+    auto replaced = [&](const std::string& from, const std::string& to) {
+        std::string s = good;
+        const size_t p = s.find(from);
+        EXPECT_NE(p, std::string::npos) << from;
+        return s.replace(p, from.size(), to);
+    };
+    EXPECT_EQ(where(replaced("\"class\": \"relevant\"", "\"class\": \"defect\"")).rfind("findings[0].interpretation.class |", 0), 0u);
+    EXPECT_EQ(where(replaced("\"outcome\": \"refer-for-review\"", "\"outcome\": 3")).rfind("findings[0].evaluation.outcome |", 0), 0u);
+    EXPECT_EQ(where(replaced("\"kind\": \"ellipse\"", "\"kind\": \"circle\"")).rfind("captures[0].measurements[3].kind |", 0), 0u);
+    EXPECT_EQ(where(replaced("\"sha256\": \"", "\"sha257\": \"")).rfind("captures[0].sha256 | missing", 0), 0u);
+    EXPECT_EQ(where(replaced("\"active_capture\": 1", "\"active_capture\": 5")).rfind("active_capture |", 0), 0u);
+    EXPECT_EQ(where(replaced("\"x_mm\": 2.4", "\"x_mm\": \"2.4\"")).rfind("findings[0].indication.x_mm |", 0), 0u);
+    EXPECT_EQ(where(good), "no error");
+
+    try {
+        loadCase((t.path() / "absent.umbracase").string());
+        FAIL();
+    } catch (const InputError& e) {
+        EXPECT_NE(std::string(e.what()).find("does not exist"), std::string::npos);
+    }
+}
+
+TEST(case_file_test, autosave_path_is_a_sibling) {
+    EXPECT_EQ(autosavePath("/cases/w12.umbracase"), "/cases/w12.umbracase.autosave");
+    EXPECT_EQ(autosavePath("/cases/w12"), "/cases/w12.umbracase.autosave");
+}
