@@ -52,7 +52,10 @@ void writePng(const std::string& path, const core::Frame& f, const core::Recipe&
     cv::resize(img, shown, cv::Size(W, H), 0, 0, scale > 1 ? cv::INTER_NEAREST : cv::INTER_AREA);
 
     const int left = 70, top = 46, right = 110, bottom = 50;
-    cv::Mat canvas(H + top + bottom, W + left + right, CV_8UC3, cv::Scalar(255, 255, 255));
+    int tbase = 0;
+    const int title_w = cv::getTextSize(title, cv::FONT_HERSHEY_SIMPLEX, 0.45, 1, &tbase).width + 16;
+    const int canvas_w = std::max(W + left + right, title_w);
+    cv::Mat canvas(H + top + bottom, canvas_w, CV_8UC3, cv::Scalar(255, 255, 255));
     shown.copyTo(canvas(cv::Rect(left, top, W, H)));
     const cv::Scalar ink(0, 0, 0);
     const int font = cv::FONT_HERSHEY_SIMPLEX;
