@@ -1,0 +1,186 @@
+#!/usr/bin/python3
+# SPDX-License-Identifier: MIT
+"""Command-line tests of umbra-cli, one case per ctest test.
+
+usage: cli_test.py UMBRA_CLI WORKDIR CASE
+
+The capture used is the synthetic fixture of tests/core/fixtures/write_capture.py (written
+by h5py, independently of Umbra); expected numbers are computed here from its known values
+with the formulas the summary promises: duration = N_samples / f_s, pulse-echo depth
+z = c * t / 2 (two-way travel time t), pitch = mean neighbour spacing along x.
+"""
+import json
+import math
+import os
+import shutil
+import subprocess
+import sys
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+FIXTURES = os.path.join(HERE, "..", "core", "fixtures")
+sys.path.insert(0, FIXTURES)
+import write_capture as wc  # noqa: E402
+
+CLI, WORK, CASE = sys.argv[1], sys.argv[2], sys.argv[3]
+FAILURES = []
+
+
+def check(cond, what):
+    if not cond:
+        FAILURES.append(what)
+        print("FAIL:", what)
+
+
+def run(*args):
+    p = subprocess.run([CLI, *args], capture_output=True, text=True, timeout=120)
+    return p.returncode, p.stdout, p.stderr
+
+
+def fresh_dir():
+    d = os.path.join(WORK, CASE)
+    shutil.rmtree(d, ignore_errors=True)
+    os.makedirs(d)
+    return d
+
+
+def capture():
+    path = os.path.join(fresh_dir(), "fixture.h5")
+    wc.write(path)
+    return path
+
+
+# Expected summary numbers from the fixture's known values.
+T0_MIN, T0_MAX = min(wc.START_TIME_S), max(wc.START_TIME_S)
+DURATION_S = wc.N_SAMPLES / wc.SAMPLING_FREQUENCY_HZ
+C = wc.SPEED_OF_SOUND_M_S
+DEPTH_MIN_M = T0_MIN * C / 2
+DEPTH_MAX_M = (T0_MAX + DURATION_S) * C / 2
+
+
+def case_info_json():
+    path = capture()
+    rc, out, err = run("info", "--json", path)
+    check(rc == 0, f"info --json exit {rc}: {err}")
+    j = json.loads(out)
+    rel = lambda a, b: math.isclose(a, b, rel_tol=1e-12, abs_tol=1e-15)  # noqa: E731
+    check(j["file"] == path, "file")
+    check(j["title"] == wc.TITLE, "title")
+    check(j["synthetic"] is True, "synthetic flag")
+    check(j["array"]["elements"] == wc.N_EL, "elements")
+    check(rel(j["array"]["pitch_m"], wc.PITCH_M), f"pitch {j['array']['pitch_m']}")
+    check(rel(j["array"]["centre_frequency_hz"], wc.CENTRE_FREQUENCY_HZ), "centre frequency")
+    check(rel(j["array"]["element_width_m"], wc.ELEMENT_WIDTH_M), "element width")
+    check(rel(j["array"]["fractional_bandwidth"], wc.FRACTIONAL_BANDWIDTH), "bandwidth")
+    check(j["transmit"]["kind"] == "single_element", "transmit kind")
+    check(j["transmit"]["count"] == wc.N_TX, "transmit count")
+    check(j["receive"]["channels"] == wc.N_EL, "receive channels")
+    check(rel(j["receive"]["sampling_frequency_hz"], wc.SAMPLING_FREQUENCY_HZ), "sampling frequency")
+    check(j["traces"]["samples"] == wc.N_SAMPLES, "samples")
+    check(rel(j["traces"]["duration_s"], DURATION_S), f"duration {j['traces']['duration_s']} vs {DURATION_S}")
+    check(j["traces"]["sample_type"] == "int16", "sample type")
+    check(rel(j["traces"]["scale"], wc.RF_SCALE), "scale")
+    check(j["traces"]["units"] == "V", "units")
+    check(rel(j["traces"]["depth_min_m"], DEPTH_MIN_M), f"depth min {j['traces']['depth_min_m']} vs {DEPTH_MIN_M}")
+    check(rel(j["traces"]["depth_max_m"], DEPTH_MAX_M), f"depth max {j['traces']['depth_max_m']} vs {DEPTH_MAX_M}")
+    check(j["frames"] == wc.N_FRAMES, "frames")
+    check(j["file_size_bytes"] == os.path.getsize(path), "file size")
+    check(rel(j["medium"]["speed_of_sound_m_s"], C), "speed of sound")
+    check(rel(j["medium"]["thickness_m"], wc.THICKNESS_M), "thickness")
+    check(rel(j["wedge"]["speed_of_sound_m_s"], wc.WEDGE_SPEED_M_S), "wedge speed")
+    check(j["provenance"]["part_id"] == "SYN-0001", "provenance")
+
+
+def case_info_text():
+    path = capture()
+    rc, out, err = run("info", path)
+    check(rc == 0, f"info exit {rc}: {err}")
+    lines = {l[:13].strip(): l[13:] for l in out.splitlines() if len(l) > 13}
+    print(out)
+    check(f"{wc.N_EL} elements" in lines.get("Array", ""), "elements")
+    check(f"pitch {wc.PITCH_M * 1e3:.3f} mm" in lines.get("Array", ""), "pitch")
+    check(f"{wc.CENTRE_FREQUENCY_HZ / 1e6:.2f} MHz" in lines.get("Array", ""), "centre frequency")
+    check(f"{wc.N_TX} events" in lines.get("Transmit", ""), "transmit count")
+    check(f"{wc.N_EL} channels" in lines.get("Receive", ""), "channels")
+    check(f"{wc.SAMPLING_FREQUENCY_HZ / 1e6:.2f} MHz, {wc.N_SAMPLES} samples ({DURATION_S * 1e6:.2f} us)"
+          in lines.get("Sampling", ""), "sampling and duration")
+    check(f"{DEPTH_MIN_M * 1e3:.1f} to {DEPTH_MAX_M * 1e3:.1f} mm" in lines.get("Depth range", ""), "depth range")
+    check(lines.get("Frames", "").startswith(f"{wc.N_FRAMES}"), "frames")
+    check(f"{os.path.getsize(path) / 2**20:.2f} MiB" in lines.get("File size", ""), "file size")
+    check("synthetic" in out, "synthetic label")
+
+
+def case_validate_external():
+    path = capture()
+    rc, out, err = run("validate", path)
+    check(rc == 0, f"validate exit {rc}: {err}")
+    check("valid" in out and path in out, "validate message")
+    rc, out, err = run("validate", "--quiet", path)
+    check(rc == 0 and out == "", "validate --quiet prints nothing")
+
+
+def case_validate_bad():
+    d = fresh_dir()
+    subprocess.run(["/usr/bin/python3", os.path.join(FIXTURES, "make_bad_captures.py"), d],
+                   check=True, capture_output=True)
+    manifest = json.load(open(os.path.join(d, "manifest.json")))
+    check(len(manifest) > 50, "manifest has the cases")
+    # The program runs are independent: several at a time keeps the case short.
+    from concurrent.futures import ThreadPoolExecutor
+    with ThreadPoolExecutor(max_workers=4) as pool:
+        results = list(pool.map(lambda c: run("validate", os.path.join(d, c["file"])), manifest))
+    for c, (rc, out, err) in zip(manifest, results):
+        f = os.path.join(d, c["file"])
+        lines = err.strip().splitlines()
+        check(rc == 2, f"{c['name']}: exit {rc}")
+        check(out == "", f"{c['name']}: nothing on stdout")
+        check(len(lines) >= 1, f"{c['name']}: no message")
+        # One line per problem: "FILE: /hdf5/path: what" (or "FILE: what" for the file itself).
+        for line in lines:
+            check(line.startswith(f + ": "), f"{c['name']}: line does not name the file: {line}")
+            rest = line[len(f) + 2:]
+            check(rest.startswith("/") or not c["where"] or rest == "", f"{c['name']}: no HDF5 path: {line}")
+        check(len(set(lines)) == len(lines), f"{c['name']}: repeated lines")
+        prefix = f + ": " + (c["where"] + ": " if c["where"] else "")
+        check(any(l.startswith(prefix) and c["what"] in l[len(prefix):].lower() for l in lines),
+              f"{c['name']}: expected '{prefix}...{c['what']}...', got {lines}")
+        print(f"{c['name']:45s} {' | '.join(l[len(f) + 2:] for l in lines)}")
+    # `info` refuses the same files the same way (a sample of the kinds of problem).
+    for name in ("truncated_0.5", "not_hdf5", "directory", "missing_data_rf", "version_2", "rf_1e12_samples",
+                 "nan_speed", "element_index_too_big"):
+        f = os.path.join(d, name + ".h5")
+        rc, out, err = run("info", f)
+        check(rc == 2 and err.startswith(f + ": "), f"{name}: info exit {rc}: {err}")
+
+
+def case_help():
+    rc, out, err = run("--help")
+    check(rc == 0 and "usage:" in out, f"umbra-cli --help exit {rc}")
+    for cmd in ("info", "validate", "simulate", "reconstruct"):
+        rc, out, err = run(cmd, "--help")
+        check(rc == 0, f"{cmd} --help exit {rc}: {err.strip()}")
+        check("usage:" in out, f"{cmd} --help prints a usage line")
+
+
+def case_usage_errors():
+    path = capture()
+    for cmd in ("info", "validate", "simulate", "reconstruct"):
+        rc, out, err = run(cmd, "--no-such-option", path)
+        check(rc == 2, f"{cmd} --no-such-option exit {rc}")
+        check("--no-such-option" in err, f"{cmd}: message names the option: {err.strip()}")
+    rc, out, err = run("frobnicate")
+    check(rc == 2 and "frobnicate" in err, f"unknown command exit {rc}")
+    rc, out, err = run()
+    check(rc == 2, f"no command exit {rc}")
+    for cmd in ("info", "validate"):
+        rc, out, err = run(cmd)
+        check(rc == 2, f"{cmd} without a file exit {rc}")
+        rc, out, err = run(cmd, path, path)
+        check(rc == 2, f"{cmd} with two files exit {rc}")
+
+
+if __name__ == "__main__":
+    globals()["case_" + CASE]()
+    if FAILURES:
+        print(f"{len(FAILURES)} check(s) failed")
+        sys.exit(1)
+    print("all checks passed")
