@@ -117,7 +117,8 @@ void parseHeader(hid_t file, HeaderParse& out) {
         // Checks one table read (or failed) into `v`; true when it may be kept.
         auto tableOk = [&](const char* where, bool read) {
             if (!read) {
-                add(where, err.find("too large") != std::string::npos ? err + "; " + want : err);
+                const auto big = err.find(" is too large");
+                add(where, big != std::string::npos ? err.substr(0, big) + " is not what the transmit list needs: " + want : err);
                 return false;
             }
             if (dims[0] != ntx || dims[1] != nel) {
