@@ -194,6 +194,8 @@ struct Reconstructor::Impl {
             return apodizationWeight(das.apodization, (xe - xc) / std::max(half_len, 1e-9), das.tukey_alpha);
         }
         const double half = std::max(std::max(z, 0.0) / (2 * das.f_number), pitch);
+        if (das.apodization == "rectangular")  // edge element weighted by the part of its pitch inside: no jumps with depth
+            return float(std::clamp((half - std::fabs(xe - x)) / pitch + 0.5, 0.0, 1.0));
         return apodizationWeight(das.apodization, (xe - x) / half, das.tukey_alpha);
     }
 

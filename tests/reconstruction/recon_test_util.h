@@ -1,0 +1,109 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// Test helpers: synthetic captures of analytic point echoes, written to a temporary file.
+// Echo of each path: A exp(-t^2 / 2 sigma^2) cos(2 pi f0 t) delayed by the path time, with
+// sigma = sqrt(2 ln 2) / (pi B f0) so that B is the -6 dB fractional bandwidth of the echo
+// (Gaussian Fourier pair; check-values row 26).
+#include <unistd.h>
+
+#include <cmath>
+#include <filesystem>
+#include <functional>
+#include <optional>
+#include <random>
+#include <string>
+#include <vector>
+
+#include "core/capture.h"
+#include "core/capture_file.h"
+
+namespace umbra::testutil {
+
+struct Point {
+    double x, z, amp;
+};
+
+struct SynthSpec {
+    size_t elements = 64;
+    double pitch = 0.15e-3;
+    double f0 = 5e6, bw = 0.6, c = 1540, fs = 40e6;
+    size_t samples = 1000;
+    core::TransmitKind kind = core::TransmitKind::SingleElement;
+    std::vector<double> angles;  // plane wave
+    std::optional<double> attenuation;
+};
+
+inline double sigmaFor(double f0, double B) { return std::sqrt(2 * std::log(2.0)) / (M_PI * B * f0); }
+
+inline core::CaptureHeader makeHeader(const SynthSpec& s) {
+    core::CaptureHeader h;
+    h.title = "synthetic point echoes (test)";
+    h.created_utc = "2026-01-01T00:00:00Z";
+    for (size_t e = 0; e < s.elements; ++e)
+        h.array.element_position_m.push_back({(double(e) - double(s.elements - 1) / 2) * s.pitch, 0, 0});
+    h.array.centre_frequency_hz = s.f0;
+    h.array.fractional_bandwidth = s.bw;
+    h.array.element_width_m = s.pitch * 0.9;
+    h.transmit.kind = s.kind;
+    size_t ntx = 0;
+    if (s.kind == core::TransmitKind::SingleElement) {
+        for (size_t e = 0; e < s.elements; ++e) h.transmit.source_element.push_back(int32_t(e));
+        ntx = s.elements;
+    } else {
+        h.transmit.angle_rad = s.angles;
+        ntx = s.angles.size();
+    }
+    for (size_t e = 0; e < s.elements; ++e) h.receive.element_index.push_back(int32_t(e));
+    h.receive.sampling_frequency_hz = s.fs;
+    h.receive.start_time_s.assign(ntx, 0.0);
+    h.medium.speed_of_sound_m_s = s.c;
+    h.medium.attenuation_db_per_cm_mhz = s.attenuation;
+    h.frames = 1;
+    h.samples = s.samples;
+    h.sample_type = core::SampleType::Float32;
+    h.provenance["source"] = "synthetic test data (analytic point echoes)";
+    return h;
+}
+
+/// Writes a capture of point scatterers to `path`; returns the header.
+inline core::CaptureHeader writePointCapture(const std::string& path, const SynthSpec& s, const std::vector<Point>& pts) {
+    core::CaptureHeader h = makeHeader(s);
+    const double sig = sigmaFor(s.f0, s.bw);
+    const size_t ntx = h.transmits();
+    core::CaptureWriter w(path, h);
+    std::vector<float> block(h.blockSize());
+    for (size_t t = 0; t < ntx; ++t) {
+        std::fill(block.begin(), block.end(), 0.0f);
+        for (size_t r = 0; r < s.elements; ++r) {
+            const double xr = h.array.element_position_m[r][0];
+            for (const auto& p : pts) {
+                double ttx;
+                if (s.kind == core::TransmitKind::SingleElement) {
+                    const double xt = h.array.element_position_m[t][0];
+                    ttx = std::hypot(p.x - xt, p.z) / s.c;
+                } else {
+                    const double a = s.angles[t];
+                    ttx = (p.z * std::cos(a) + p.x * std::sin(a)) / s.c;
+                }
+                const double tau = ttx + std::hypot(p.x - xr, p.z) / s.c;
+                const long k0 = long(std::floor((tau - 5 * sig) * s.fs)), k1 = long(std::ceil((tau + 5 * sig) * s.fs));
+                for (long k = std::max(0L, k0); k <= k1 && k < long(s.samples); ++k) {
+                    const double dt = double(k) / s.fs - tau;
+                    block[r * s.samples + size_t(k)] += float(p.amp * std::exp(-dt * dt / (2 * sig * sig)) * std::cos(2 * M_PI * s.f0 * dt));
+                }
+            }
+        }
+        w.writeBlock(0, t, block.data());
+    }
+    w.finish();
+    return h;
+}
+
+/// A fresh temporary file name under the system temp directory.
+inline std::string tempPath(const std::string& name) {
+    auto dir = std::filesystem::temp_directory_path() / ("umbra_recon_tests_" + std::to_string(::getpid()));
+    std::filesystem::create_directories(dir);
+    return (dir / name).string();
+}
+
+}  // namespace umbra::testutil
