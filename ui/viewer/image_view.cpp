@@ -57,6 +57,12 @@ void ImageView::setTool(Tool t) {
 }
 
 core::ViewState ImageView::viewState() const {
+    if (pending_view_) {  // not applied yet: the stored view is still the truth
+        core::ViewState v = *pending_view_;
+        v.frame = ctl_->currentFrame();
+        v.tool = toolName(tool_).toStdString();
+        return v;
+    }
     core::ViewState v;
     v.frame = ctl_->currentFrame();
     v.zoom = vt_.zoom();

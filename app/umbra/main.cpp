@@ -1,0 +1,88 @@
+// SPDX-License-Identifier: MIT
+// umbra — the workstation. Thin: parses the command line, shows the main window.
+//
+//   umbra [CAPTURE.h5 | CASE.umbracase]
+//   umbra --demo DIR                      weld coupon (+ Phantom P-2 as a second capture) from DIR
+//   umbra ... --timings                   print display re-render and beamforming times
+//   umbra ... --screenshot FILE [--demo-annotate] [--capture N] [--export FILE]
+#include <QApplication>
+#include <QCommandLineParser>
+#include <QTimer>
+
+#include <cstdio>
+
+#include "ui/controller/case_controller.h"
+#include "ui/main/main_window.h"
+
+int main(int argc, char** argv) {
+    QApplication app(argc, argv);
+    QApplication::setApplicationName("Umbra");
+    QApplication::setOrganizationName("Umbra");
+    QApplication::setApplicationVersion("0.1.0");
+
+    QCommandLineParser cl;
+    cl.setApplicationDescription("Umbra workstation: ultrasonic array imaging, measurement and findings.");
+    cl.addHelpOption();
+    cl.addVersionOption();
+    cl.addPositionalArgument("file", "A capture (.h5) or a case (.umbracase) to open.", "[CAPTURE.h5 | CASE.umbracase]");
+    QCommandLineOption demo("demo", "Open the demo captures from DIR (weld_coupon.h5, phantom_p2.h5).", "DIR");
+    QCommandLineOption timings("timings", "Print display re-render and beamforming times to stderr.");
+    QCommandLineOption shot("screenshot", "Wait for the image, grab the window to FILE (PNG) and quit.", "FILE");
+    QCommandLineOption annotate("demo-annotate", "Place a demonstration extent box, depth marker, caliper and finding.");
+    QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
+    QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
+    QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
+    QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
+    for (const auto& o : {demo, timings, shot, annotate, capture, exportOpt, frame, timeout}) cl.addOption(o);
+    cl.process(app);
+
+    umbra::ui::MainWindow::Options opt;
+    opt.timings = cl.isSet(timings);
+    const bool screenshot = cl.isSet(shot);
+    if (screenshot) {
+        opt.interactive = false;
+        opt.recovery = umbra::ui::MainWindow::Recovery::Ignore;
+    }
+    umbra::ui::MainWindow w(opt);
+    if (screenshot) w.resize(1600, 1000);
+    w.show();
+
+    bool ok = true;
+    if (cl.isSet(demo)) ok = w.openDemo(cl.value(demo));
+    else if (!cl.positionalArguments().isEmpty()) ok = w.openPath(cl.positionalArguments().front());
+    auto* ctl = w.controller();
+    const size_t cap = cl.value(capture).toULongLong();
+    if (ok && cap > 0 && cap < ctl->captureCount()) ctl->setActiveCapture(cap);
+    if (ok && cl.isSet(frame)) ctl->setCurrentFrame(cl.value(frame).toULongLong());
+
+    if (screenshot) {
+        if (!ok) return 1;
+        const QString out = cl.value(shot);
+        const QString exp = cl.value(exportOpt);
+        const bool ann = cl.isSet(annotate);
+        const double limit_s = cl.value(timeout).toDouble();
+        auto* timer = new QTimer(&w);
+        auto* elapsed = new double(0);
+        QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed] {
+            *elapsed += 0.25;
+            const bool image = ctl->hasImage();
+            const bool top_done = !ctl->isEncodedScan() || ctl->topViewFramesDone() >= ctl->frameCount();
+            if (!(image && top_done) && *elapsed < limit_s) return;
+            timer->stop();
+            if (!image) {
+                std::fprintf(stderr, "umbra: no image after %.0f s\n", *elapsed);
+                QApplication::exit(2);
+                return;
+            }
+            if (ann) w.demoAnnotate();
+            QTimer::singleShot(300, &w, [&w, out, exp] {
+                const bool saved = w.grab().save(out, "PNG");
+                std::fprintf(stderr, "umbra: screenshot %s %s\n", out.toLocal8Bit().constData(), saved ? "written" : "FAILED");
+                if (!exp.isEmpty()) w.exportImage(exp, 2400);
+                QApplication::exit(saved ? 0 : 3);
+            });
+        });
+        timer->start(250);
+    }
+    return QApplication::exec();
+}

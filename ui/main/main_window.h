@@ -1,0 +1,117 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// The workstation window: image view in the centre; recipe panel (left), findings and
+// measurements (right), trace view and top view (bottom) as docks; menus with the shortcuts;
+// status bar with the cursor readout, timings, progress and cancel.
+#include <QMainWindow>
+#include <QPointer>
+
+#include <functional>
+
+class QAction;
+class QActionGroup;
+class QComboBox;
+class QLabel;
+class QProgressBar;
+class QSlider;
+class QTimer;
+class QToolButton;
+
+namespace umbra::ui {
+
+class CaseController;
+class ImageView;
+class RecipePanel;
+class TraceView;
+class TopView;
+enum class Tool;
+
+/// What to do when a case has an autosave newer than itself.
+enum class Recovery { Ask, Recover, Ignore };
+struct MainWindowOptions {
+    bool interactive = true;        ///< false: no modal dialogs (tests, screenshots); errors go to stderr
+    Recovery recovery = Recovery::Ask;
+    bool timings = false;           ///< print display and beamforming times to stderr
+    int autosave_seconds = 60;      ///< auto-save period while the case is modified, s
+};
+
+class MainWindow : public QMainWindow {
+    Q_OBJECT
+public:
+    using Options = MainWindowOptions;
+    using Recovery = umbra::ui::Recovery;
+    explicit MainWindow(Options options = Options(), QWidget* parent = nullptr);
+    ~MainWindow() override;
+
+    CaseController* controller() const { return ctl_; }
+    ImageView* imageView() const { return view_; }
+    RecipePanel* recipePanel() const { return recipe_; }
+    TraceView* traceView() const { return trace_; }
+
+    /// Opens a capture (.h5) or a case (.umbracase). Returns false (after telling the user) on error.
+    bool openPath(const QString& path);
+    /// Saves the case to `path` (Save As when empty and untitled). Returns false on error/cancel.
+    bool saveCaseTo(const QString& path);
+    /// Opens the demo: DIR/weld_coupon.h5 (and DIR/phantom_p2.h5 as a second capture).
+    bool openDemo(const QString& dir);
+    /// Places a demonstration caliper, extent box and finding on the strongest echo.
+    void demoAnnotate();
+    /// Writes the annotated PNG of the current view.
+    bool exportImage(const QString& path, int width_px);
+    /// Asks the user for a replacement of a missing/changed capture (interactive only).
+    void offerRelocation();
+    /// Writes the autosave file now (what the timer does).
+    void autosaveNow();
+    /// Called when a relocation is needed in non-interactive mode (tests): returns the new path.
+    std::function<QString()> relocationProvider;
+
+protected:
+    void closeEvent(QCloseEvent*) override;
+    void dragEnterEvent(QDragEnterEvent*) override;
+    void dropEvent(QDropEvent*) override;
+
+private:
+    void buildActions();
+    void buildDocks();
+    void buildStatusBar();
+    void updateTitle();
+    void updateFrameControls();
+    void updateTimings();
+    void onCaptureChanged();
+    bool maybeSave();
+    void showError(const QString& title, const QString& text);
+    void open();
+    bool save();
+    bool saveAs();
+    void exportDialog();
+    void relocate();
+    void loadRecipe();
+    void saveRecipe();
+    void addFindingFromSelection();
+    void setTool(Tool t);
+
+    Options opt_;
+    CaseController* ctl_;
+    ImageView* view_;
+    RecipePanel* recipe_ = nullptr;
+    TraceView* trace_ = nullptr;
+    TopView* top_ = nullptr;
+    QWidget* findings_ = nullptr;
+    QWidget* table_ = nullptr;
+    QDockWidget* top_dock_ = nullptr;
+
+    QActionGroup* tools_ = nullptr;
+    QAction* undo_ = nullptr;
+    QAction* redo_ = nullptr;
+    QSlider* frame_slider_ = nullptr;
+    QLabel* frame_label_ = nullptr;
+    QComboBox* capture_combo_ = nullptr;
+    QLabel* readout_ = nullptr;
+    QLabel* timing_ = nullptr;
+    QProgressBar* progress_ = nullptr;
+    QToolButton* cancel_ = nullptr;
+    QTimer* autosave_ = nullptr;
+    bool updating_controls_ = false;
+};
+
+}  // namespace umbra::ui

@@ -1,0 +1,202 @@
+// SPDX-License-Identifier: MIT
+#include "ui/recipe/recipe_panel.h"
+
+#include <QCheckBox>
+#include <QComboBox>
+#include <QDoubleSpinBox>
+#include <QFormLayout>
+#include <QGroupBox>
+#include <QHBoxLayout>
+#include <QLabel>
+#include <QLineEdit>
+#include <QPushButton>
+#include <QScrollArea>
+#include <QSpinBox>
+#include <QVBoxLayout>
+
+#include <algorithm>
+#include <cmath>
+
+#include "core/error.h"
+#include "ui/controller/case_controller.h"
+
+namespace umbra::ui {
+
+namespace {
+/// Spin-box step for a range: about 1/200 of it, rounded to 1, 2 or 5 x 10^n.
+double niceStepFor(double span) {
+    if (!(span > 0)) return 0.1;
+    const double raw = span / 200.0;
+    const double mag = std::pow(10.0, std::floor(std::log10(raw)));
+    const double n = raw / mag;
+    return (n < 2 ? 1 : n < 5 ? 2 : 5) * mag;
+}
+int decimalsFor(double step) {
+    if (!(step > 0)) return 3;
+    return std::clamp(static_cast<int>(std::ceil(-std::log10(step) - 1e-9)), 0, 6);
+}
+QString tooltipFor(const core::StageSpec& st, const core::ParamSpec& p) {
+    QString t = QStringLiteral("<b>%1</b> <code>%2.%3</code><br>%4")
+                    .arg(QString::fromStdString(p.label).toHtmlEscaped(), QString::fromStdString(st.name),
+                         QString::fromStdString(p.name), QString::fromStdString(p.description).toHtmlEscaped());
+    if (!p.unit.empty()) t += QStringLiteral("<br>Unit: %1").arg(QString::fromStdString(p.unit).toHtmlEscaped());
+    if (p.kind == core::ParamKind::Real || p.kind == core::ParamKind::Integer)
+        t += QStringLiteral("<br>Range: %1 to %2").arg(p.min).arg(p.max);
+    t += p.display_only ? QStringLiteral("<br><i>Display setting: re-maps the stored image, no re-beamforming.</i>")
+                        : QStringLiteral("<br><i>Reconstruction setting: the frame is beamformed again.</i>");
+    return t;
+}
+}  // namespace
+
+RecipePanel::RecipePanel(CaseController* controller, QWidget* parent) : QWidget(parent), ctl_(controller) {
+    build();
+    connect(ctl_, &CaseController::recipeChanged, this, &RecipePanel::syncFromRecipe);
+}
+
+void RecipePanel::build() {
+    auto* outer = new QVBoxLayout(this);
+    outer->setContentsMargins(0, 0, 0, 0);
+    auto* buttons = new QHBoxLayout;
+    buttons->setContentsMargins(8, 6, 8, 2);
+    auto* load = new QPushButton(tr("Load…"));
+    auto* save = new QPushButton(tr("Save…"));
+    load->setToolTip(tr("Load a recipe (JSON) over the current one"));
+    save->setToolTip(tr("Save the current recipe as JSON"));
+    connect(load, &QPushButton::clicked, this, &RecipePanel::loadRecipeRequested);
+    connect(save, &QPushButton::clicked, this, &RecipePanel::saveRecipeRequested);
+    buttons->addWidget(new QLabel(tr("Recipe")));
+    buttons->addStretch();
+    buttons->addWidget(load);
+    buttons->addWidget(save);
+    outer->addLayout(buttons);
+    note_ = new QLabel;
+    note_->setWordWrap(true);
+    note_->setStyleSheet("color: #b3261e; padding: 2px 8px;");
+    note_->hide();
+    outer->addWidget(note_);
+
+    auto* scroll = new QScrollArea;
+    scroll->setWidgetResizable(true);
+    scroll->setFrameShape(QFrame::NoFrame);
+    auto* inner = new QWidget;
+    auto* v = new QVBoxLayout(inner);
+    v->setContentsMargins(6, 2, 6, 6);
+    v->setSpacing(6);
+    const core::Recipe& r = ctl_->recipe();
+    for (const auto& st : r.stages()) {
+        if (st.params.empty()) continue;
+        auto* box = new QGroupBox(QString::fromStdString(st.label.empty() ? st.name : st.label));
+        box->setToolTip(QString::fromStdString(st.description));
+        auto* form = new QFormLayout(box);
+        form->setFieldGrowthPolicy(QFormLayout::AllNonFixedFieldsGrow);
+        form->setContentsMargins(8, 6, 8, 6);
+        for (const auto& p : st.params) {
+            const std::string key = st.name + "." + p.name;
+            QWidget* w = nullptr;
+            const QString unit = p.unit.empty() ? QString() : " " + QString::fromStdString(p.unit);
+            switch (p.kind) {
+                case core::ParamKind::Real: {
+                    auto* s = new QDoubleSpinBox;
+                    const double step = p.step > 0 ? p.step : niceStepFor(p.max - p.min);
+                    s->setDecimals(decimalsFor(step));
+                    s->setRange(p.min, p.max);
+                    s->setSingleStep(step);
+                    s->setSuffix(unit);
+                    s->setKeyboardTracking(false);
+                    connect(s, &QDoubleSpinBox::valueChanged, this, [this, key, s](double x) {
+                        commit(key, QString::number(x, 'g', 12).toStdString());
+                        (void)s;
+                    });
+                    w = s;
+                    break;
+                }
+                case core::ParamKind::Integer: {
+                    auto* s = new QSpinBox;
+                    s->setRange(static_cast<int>(p.min), static_cast<int>(p.max));
+                    s->setSingleStep(p.step > 0 ? static_cast<int>(p.step) : 1);
+                    s->setSuffix(unit);
+                    s->setKeyboardTracking(false);
+                    connect(s, &QSpinBox::valueChanged, this, [this, key](int x) { commit(key, std::to_string(x)); });
+                    w = s;
+                    break;
+                }
+                case core::ParamKind::Choice: {
+                    auto* c = new QComboBox;
+                    for (const auto& ch : p.choices) c->addItem(QString::fromStdString(ch));
+                    connect(c, &QComboBox::currentTextChanged, this, [this, key](const QString& t) { commit(key, t.toStdString()); });
+                    w = c;
+                    break;
+                }
+                case core::ParamKind::Flag: {
+                    auto* c = new QCheckBox;
+                    connect(c, &QCheckBox::toggled, this, [this, key](bool on) { commit(key, on ? "1" : "0"); });
+                    w = c;
+                    break;
+                }
+                case core::ParamKind::Text: {
+                    auto* e = new QLineEdit;
+                    e->setPlaceholderText(tr("(default)"));
+                    connect(e, &QLineEdit::editingFinished, this, [this, key, e] { commit(key, e->text().toStdString()); });
+                    w = e;
+                    break;
+                }
+            }
+            const QString tip = tooltipFor(st, p);
+            w->setToolTip(tip);
+            w->setObjectName(QString::fromStdString(key));
+            auto* label = new QLabel(QString::fromStdString(p.label.empty() ? p.name : p.label));
+            label->setToolTip(tip);
+            if (p.display_only) label->setStyleSheet("color: #1f5f9e;");
+            form->addRow(label, w);
+            editors_[key] = w;
+        }
+        v->addWidget(box);
+    }
+    auto* legend = new QLabel(tr("<span style='color:#1f5f9e'>Blue</span> settings only re-map the stored image; "
+                                 "the others beamform again (in the background; Esc or Cancel stops it)."));
+    legend->setWordWrap(true);
+    legend->setStyleSheet("color: #5b6470; font-size: 9pt; padding: 4px;");
+    v->addWidget(legend);
+    v->addStretch();
+    scroll->setWidget(inner);
+    outer->addWidget(scroll);
+    syncFromRecipe();
+}
+
+
+
+QWidget* RecipePanel::editorFor(const std::string& key) const {
+    auto it = editors_.find(key);
+    return it == editors_.end() ? nullptr : it->second;
+}
+
+void RecipePanel::commit(const std::string& key, const std::string& value) {
+    if (syncing_) return;
+    try {
+        ctl_->editRecipeValue(key, value);
+        note_->hide();
+    } catch (const std::exception& e) {
+        note_->setText(QString::fromStdString(e.what()));
+        note_->show();
+        syncFromRecipe();
+    }
+}
+
+void RecipePanel::syncFromRecipe() {
+    syncing_ = true;
+    const core::Recipe& r = ctl_->recipe();
+    for (auto& [key, w] : editors_) {
+        if (!r.has(key)) continue;
+        const auto& p = r.spec(key);
+        switch (p.kind) {
+            case core::ParamKind::Real: static_cast<QDoubleSpinBox*>(w)->setValue(r.number(key)); break;
+            case core::ParamKind::Integer: static_cast<QSpinBox*>(w)->setValue(r.integer(key)); break;
+            case core::ParamKind::Choice: static_cast<QComboBox*>(w)->setCurrentText(QString::fromStdString(r.text(key))); break;
+            case core::ParamKind::Flag: static_cast<QCheckBox*>(w)->setChecked(r.flag(key)); break;
+            case core::ParamKind::Text: static_cast<QLineEdit*>(w)->setText(QString::fromStdString(r.text(key))); break;
+        }
+    }
+    syncing_ = false;
+}
+
+}  // namespace umbra::ui

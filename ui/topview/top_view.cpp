@@ -1,0 +1,103 @@
+// SPDX-License-Identifier: MIT
+#include "ui/topview/top_view.h"
+
+#include <QMouseEvent>
+#include <QPainter>
+
+#include <algorithm>
+#include <cmath>
+
+#include "ui/controller/case_controller.h"
+#include "ui/viewer/scene_painter.h"
+
+namespace umbra::ui {
+
+TopView::TopView(CaseController* controller, QWidget* parent) : QWidget(parent), ctl_(controller) {
+    setMinimumSize(200, 140);
+    setCursor(Qt::PointingHandCursor);
+    connect(ctl_, &CaseController::topViewChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::frameChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::captureChanged, this, qOverload<>(&QWidget::update));
+}
+
+QRectF TopView::plotRect() const { return QRectF(rect()).adjusted(54, 24, -12, -26); }
+
+long TopView::frameAt(double y) const {
+    const size_t n = ctl_->frameCount();
+    const QRectF r = plotRect();
+    if (n == 0 || y < r.top() || y > r.bottom()) return -1;
+    return std::clamp<long>(static_cast<long>((y - r.top()) / r.height() * static_cast<double>(n)), 0, static_cast<long>(n) - 1);
+}
+
+void TopView::paintEvent(QPaintEvent*) {
+    QPainter p(this);
+    p.setRenderHint(QPainter::Antialiasing);
+    p.fillRect(rect(), QColor(21, 23, 28));
+    const QColor axis(200, 204, 212);
+    QFont f = p.font();
+    f.setPointSizeF(8);
+    p.setFont(f);
+    p.setPen(axis);
+    const QImage& img = ctl_->topViewImage();
+    const core::Frame* fr = ctl_->envelope();
+    if (!ctl_->isEncodedScan()) {
+        p.drawText(rect().adjusted(12, 12, -12, -12), Qt::AlignCenter | Qt::TextWordWrap,
+                   tr("The top view needs an encoded scan (a capture with scan positions for more than one frame)."));
+        return;
+    }
+    const size_t n = ctl_->frameCount();
+    p.drawText(QRectF(8, 2, width() - 16, 18), Qt::AlignLeft | Qt::AlignVCenter,
+               tr("Peak over depth — %1 of %2 frames beamformed").arg(ctl_->topViewFramesDone()).arg(n));
+    const QRectF r = plotRect();
+    if (img.isNull() || !fr) {
+        p.drawText(r, Qt::AlignCenter, tr("Beamforming frames…"));
+        return;
+    }
+    p.drawImage(r, img);
+    p.drawRect(r);
+    // x axis along the bottom.
+    const double x0 = fr->x_m.front() * 1e3, x1 = fr->x_m.back() * 1e3;
+    const double sx = niceStep(x1 - x0, std::max(2, static_cast<int>(r.width() / 70)));
+    for (double x = std::ceil(x0 / sx) * sx; x <= x1 + 1e-9; x += sx) {
+        const double px = r.left() + (x - x0) / (x1 - x0) * r.width();
+        p.drawLine(QPointF(px, r.bottom()), QPointF(px, r.bottom() + 4));
+        p.drawText(QRectF(px - 25, r.bottom() + 5, 50, 14), Qt::AlignCenter, QString::number(x, 'g', 5));
+    }
+    p.drawText(QRectF(r.right() - 80, r.bottom() + 5, 80, 14), Qt::AlignRight, tr("x, mm"));
+    // Scan position down the left side.
+    const auto& h = ctl_->header();
+    const auto& pos = h.scan->position_m;
+    const double y0 = pos.front() * 1e3, y1 = pos[std::min(pos.size(), n) - 1] * 1e3;
+    const double sy = niceStep(std::abs(y1 - y0), std::max(2, static_cast<int>(r.height() / 40)));
+    const double rowh = r.height() / static_cast<double>(n);
+    for (size_t i = 0; i < n && i < pos.size(); ++i) {
+        const double y = pos[i] * 1e3;
+        if (std::abs(std::remainder(y, sy)) > 1e-6) continue;
+        const double py = r.top() + (static_cast<double>(i) + 0.5) * rowh;
+        p.drawLine(QPointF(r.left() - 4, py), QPointF(r.left(), py));
+        p.drawText(QRectF(r.left() - 50, py - 7, 44, 14), Qt::AlignRight | Qt::AlignVCenter, QString::number(y, 'g', 5));
+    }
+    p.save();
+    p.translate(10, r.center().y());
+    p.rotate(-90);
+    p.drawText(QRectF(-70, -8, 140, 16), Qt::AlignCenter, tr("scan position y, mm"));
+    p.restore();
+    // Current frame.
+    const double cy = r.top() + (static_cast<double>(ctl_->currentFrame()) + 0.5) * rowh;
+    p.setPen(QPen(QColor(255, 255, 255, 220), 1.5));
+    p.setBrush(Qt::NoBrush);
+    p.drawRect(QRectF(r.left(), cy - rowh / 2, r.width(), rowh));
+}
+
+void TopView::mousePressEvent(QMouseEvent* e) {
+    const long f = frameAt(e->position().y());
+    if (f >= 0 && e->button() == Qt::LeftButton) ctl_->setCurrentFrame(static_cast<size_t>(f));
+}
+
+void TopView::mouseMoveEvent(QMouseEvent* e) {
+    if (!(e->buttons() & Qt::LeftButton)) return;
+    const long f = frameAt(e->position().y());
+    if (f >= 0) ctl_->setCurrentFrame(static_cast<size_t>(f));
+}
+
+}  // namespace umbra::ui
