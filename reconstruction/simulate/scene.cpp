@@ -290,7 +290,7 @@ Scene parseScene(const std::string& text, const std::string& source) {
         if (m.has("samples")) n = double(m.integer("samples", 1, long(core::CaptureLimits::max_samples)));
         else {
             const double zmax = m.positive("max_depth_mm") * kMm;
-            n = std::ceil((2 * zmax / s.medium.speed_m_s - s.sampling.start_time_s) * s.sampling.frequency_hz);
+            n = std::ceil((2 * zmax / s.medium.speed_m_s - s.sampling.start_time_s) * s.sampling.frequency_hz - 1e-6);
             if (n < 1 || n > double(core::CaptureLimits::max_samples)) m.fail(m.key("max_depth_mm"), "gives " + Obj::fmt(n) + " samples (limit 1.." + std::to_string(core::CaptureLimits::max_samples) + ")");
         }
         s.sampling.samples = size_t(n);
