@@ -304,7 +304,7 @@ void CaseController::editRecipeValue(const std::string& key, const std::string& 
     core::Recipe next = recipe_;
     next.set(key, value);  // throws SettingError
     if (next == recipe_) return;
-    const auto& spec = recipe_.spec(key);
+    const core::ParamSpec spec = recipe_.spec(key);
     editRecipe(next, tr("Set %1 to %2").arg(QString::fromStdString(spec.label), QString::fromStdString(next.valueText(key))));
 }
 
