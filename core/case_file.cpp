@@ -298,7 +298,8 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
     json fs_ = json::array();
     for (const auto& f : doc.findings) fs_.push_back(findingJson(f));
     j["findings"] = fs_;
-    return j.dump(2) + "\n";
+    // Invalid UTF-8 in a user text is replaced (U+FFFD) rather than failing the save.
+    return j.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
 }
 
 CaseDocument caseFromJson(const std::string& text, const std::string& source, const std::string& base_dir) {

@@ -131,7 +131,7 @@ std::string hedgingNote(const std::vector<std::string>& words) {
         note = "Describe what is seen: " + quoted(hedges) + (hedges.size() == 1 ? " is a hedge" : " are hedges");
     if (!judgements.empty()) {
         note += note.empty() ? "Describe what is seen: " : "; ";
-        note += quoted(judgements) + " is a judgement, give the measured value instead";
+        note += quoted(judgements) + (judgements.size() == 1 ? " is" : " are") + " for a statistical test; give the measured value instead";
     }
     if (!note.empty()) note += ".";
     return note;

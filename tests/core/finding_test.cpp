@@ -82,7 +82,11 @@ TEST(finding_test, plain_description_is_not_flagged) {
 TEST(finding_test, hedging_note_names_the_words) {
     EXPECT_EQ(hedgingNote({"possible"}), "Describe what is seen: 'possible' is a hedge.");
     EXPECT_EQ(hedgingNote({"possible", "likely"}), "Describe what is seen: 'possible' and 'likely' are hedges.");
-    EXPECT_NE(hedgingNote({"significant"}).find("'significant' is a judgement"), std::string::npos);
+    EXPECT_EQ(hedgingNote({"significant"}),
+              "Describe what is seen: 'significant' is for a statistical test; give the measured value instead.");
+    EXPECT_EQ(hedgingNote({"possible", "significant"}),
+              "Describe what is seen: 'possible' is a hedge; 'significant' is for a statistical test; "
+              "give the measured value instead.");
     EXPECT_TRUE(hedgingNote({}).empty());
 }
 
