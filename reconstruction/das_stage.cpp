@@ -62,17 +62,18 @@ float apodizationWeight(const std::string& kind, double u, double alpha) {
 }
 
 namespace detail {
+namespace {
 
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
-#define UMBRA_CLONES __attribute__((target_clones("avx512f", "avx2", "default")))
-#else
-#define UMBRA_CLONES
-#endif
+inline void lagrange4(float f, float& c0, float& c1, float& c2, float& c3) {
+    const float fm1 = f - 1, fm2 = f - 2, fp1 = f + 1;
+    c0 = -f * fm1 * fm2 * (1.0f / 6);
+    c1 = fp1 * fm1 * fm2 * 0.5f;
+    c2 = -fp1 * f * fm2 * 0.5f;
+    c3 = fp1 * f * fm1 * (1.0f / 6);
+}
 
-UMBRA_CLONES
-void dasLinear(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
-               float k, const float* __restrict tr, float hi, size_t n, float* __restrict ar, float* __restrict ai) {
-#pragma GCC ivdep
+void linearScalar(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
+                  float k, const float* __restrict tr, float hi, size_t n, float* __restrict acc) {
     for (size_t p = 0; p < n; ++p) {
         float q = base[p] + tof[p];
         q = q < 1.0f ? 1.0f : q;
@@ -80,38 +81,139 @@ void dasLinear(const float* __restrict base, const float* __restrict tof, const 
         const int i = int(q);
         const float f = q - float(i);
         const float* s = tr + 2 * i;
-        const float re = s[0] + f * (s[2] - s[0]);
-        const float im = s[1] + f * (s[3] - s[1]);
-        const float w = k * wt[p] * wr[p];
-        ar[p] += w * re;
-        ai[p] += w * im;
+        const float w = (k * wt[p]) * wr[p];
+        acc[2 * p] += w * (s[0] + f * (s[2] - s[0]));
+        acc[2 * p + 1] += w * (s[1] + f * (s[3] - s[1]));
     }
 }
 
-UMBRA_CLONES
-void dasCubic(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
-              float k, const float* __restrict tr, float hi, size_t n, float* __restrict ar, float* __restrict ai) {
-#pragma GCC ivdep
+void cubicScalar(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
+                 float k, const float* __restrict tr, float hi, size_t n, float* __restrict acc) {
     for (size_t p = 0; p < n; ++p) {
         float q = base[p] + tof[p];
         q = q < 1.0f ? 1.0f : q;
         q = q > hi ? hi : q;
         const int i = int(q);
-        const float f = q - float(i);
+        float c0, c1, c2, c3;
+        lagrange4(q - float(i), c0, c1, c2, c3);
         const float* s = tr + 2 * (i - 1);
-        const float fm1 = f - 1, fm2 = f - 2, fp1 = f + 1;
-        const float c0 = -f * fm1 * fm2 * (1.0f / 6), c1 = fp1 * fm1 * fm2 * 0.5f;
-        const float c2 = -fp1 * f * fm2 * 0.5f, c3 = fp1 * f * fm1 * (1.0f / 6);
-        const float re = c0 * s[0] + c1 * s[2] + c2 * s[4] + c3 * s[6];
-        const float im = c0 * s[1] + c1 * s[3] + c2 * s[5] + c3 * s[7];
-        const float w = k * wt[p] * wr[p];
-        ar[p] += w * re;
-        ai[p] += w * im;
+        const float w = (k * wt[p]) * wr[p];
+        acc[2 * p] += w * (c0 * s[0] + c1 * s[2] + c2 * s[4] + c3 * s[6]);
+        acc[2 * p + 1] += w * (c0 * s[1] + c1 * s[3] + c2 * s[5] + c3 * s[7]);
     }
 }
 
+}  // namespace
+
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+}  // namespace detail
+}  // namespace umbra::recon
+#include <immintrin.h>
+namespace umbra::recon {
+namespace detail {
+namespace {
+
+// Each (re, im) pair is gathered as one 64-bit element; the interpolation runs on interleaved
+// complex values, with the per-pixel fraction and weight duplicated into both halves.
+#define UMBRA_AVX512 __attribute__((target("avx512f,avx512dq,avx512vl,avx2,fma")))
+#define UMBRA_AVX2 __attribute__((target("avx2,fma")))
+
+UMBRA_AVX512 void linearAvx512(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
+                               size_t n, float* acc) {
+    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k);
+    const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
+    const __m512d zero8 = _mm512_setzero_pd();
+    const double* d0 = reinterpret_cast<const double*>(tr);
+    for (size_t p = 0; p < n; p += 8) {
+        __m256 q = _mm256_add_ps(_mm256_loadu_ps(base + p), _mm256_loadu_ps(tof + p));
+        q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
+        const __m256i i = _mm256_cvttps_epi32(q);
+        const __m256 f = _mm256_sub_ps(q, _mm256_cvtepi32_ps(i));
+        const __m256 w = _mm256_mul_ps(_mm256_mul_ps(vk, _mm256_loadu_ps(wt + p)), _mm256_loadu_ps(wr + p));
+        const __m512 a = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0, 8));
+        const __m512 b = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 1, 8));
+        const __m512 f2 = _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), f, 0));
+        const __m512 w2 = _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), w, 0));
+        const __m512 v = _mm512_fmadd_ps(f2, _mm512_sub_ps(b, a), a);
+        _mm512_storeu_ps(acc + 2 * p, _mm512_fmadd_ps(w2, v, _mm512_loadu_ps(acc + 2 * p)));
+    }
+}
+
+UMBRA_AVX512 void cubicAvx512(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
+                              size_t n, float* acc) {
+    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k);
+    const __m256 two = _mm256_set1_ps(2.0f), half = _mm256_set1_ps(0.5f), sixth = _mm256_set1_ps(1.0f / 6);
+    const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
+    const __m512d zero8 = _mm512_setzero_pd();
+    const double* d0 = reinterpret_cast<const double*>(tr);
+    for (size_t p = 0; p < n; p += 8) {
+        __m256 q = _mm256_add_ps(_mm256_loadu_ps(base + p), _mm256_loadu_ps(tof + p));
+        q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
+        const __m256i i = _mm256_cvttps_epi32(q);
+        const __m256 f = _mm256_sub_ps(q, _mm256_cvtepi32_ps(i));
+        const __m256 fm1 = _mm256_sub_ps(f, one), fm2 = _mm256_sub_ps(f, two), fp1 = _mm256_add_ps(f, one);
+        // Same operation order as lagrange4.
+        const __m256 c0 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(_mm256_sub_ps(_mm256_setzero_ps(), f), fm1), fm2), sixth);
+        const __m256 c1 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(fp1, fm1), fm2), half);
+        const __m256 c2 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(_mm256_sub_ps(_mm256_setzero_ps(), fp1), f), fm2), half);
+        const __m256 c3 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(fp1, f), fm1), sixth);
+        const __m256 w = _mm256_mul_ps(_mm256_mul_ps(vk, _mm256_loadu_ps(wt + p)), _mm256_loadu_ps(wr + p));
+        const __m512 s0 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 - 1, 8));
+        const __m512 s1 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0, 8));
+        const __m512 s2 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 1, 8));
+        const __m512 s3 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 2, 8));
+#define D(x) _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), x, 0))
+        __m512 v = _mm512_mul_ps(D(c0), s0);
+        v = _mm512_fmadd_ps(D(c1), s1, v);
+        v = _mm512_fmadd_ps(D(c2), s2, v);
+        v = _mm512_fmadd_ps(D(c3), s3, v);
+        _mm512_storeu_ps(acc + 2 * p, _mm512_fmadd_ps(D(w), v, _mm512_loadu_ps(acc + 2 * p)));
+#undef D
+    }
+}
+
+UMBRA_AVX2 void linearAvx2(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
+                           size_t n, float* acc) {
+    const __m128 one = _mm_set1_ps(1.0f), vhi = _mm_set1_ps(hi), vk = _mm_set1_ps(k);
+    const __m256i dup = _mm256_set_epi32(3, 3, 2, 2, 1, 1, 0, 0);
+    const __m256d zero4 = _mm256_setzero_pd(), ones4 = _mm256_castsi256_pd(_mm256_set1_epi64x(-1));
+    const double* d0 = reinterpret_cast<const double*>(tr);
+    for (size_t p = 0; p < n; p += 4) {
+        __m128 q = _mm_add_ps(_mm_loadu_ps(base + p), _mm_loadu_ps(tof + p));
+        q = _mm_min_ps(_mm_max_ps(q, one), vhi);
+        const __m128i i = _mm_cvttps_epi32(q);
+        const __m128 f = _mm_sub_ps(q, _mm_cvtepi32_ps(i));
+        const __m128 w = _mm_mul_ps(_mm_mul_ps(vk, _mm_loadu_ps(wt + p)), _mm_loadu_ps(wr + p));
+        const __m256 a = _mm256_castpd_ps(_mm256_mask_i32gather_pd(zero4, d0, i, ones4, 8));
+        const __m256 b = _mm256_castpd_ps(_mm256_mask_i32gather_pd(zero4, d0 + 1, i, ones4, 8));
+        const __m256 f2 = _mm256_permutevar8x32_ps(_mm256_insertf128_ps(_mm256_setzero_ps(), f, 0), dup);
+        const __m256 w2 = _mm256_permutevar8x32_ps(_mm256_insertf128_ps(_mm256_setzero_ps(), w, 0), dup);
+        const __m256 v = _mm256_fmadd_ps(f2, _mm256_sub_ps(b, a), a);
+        _mm256_storeu_ps(acc + 2 * p, _mm256_fmadd_ps(w2, v, _mm256_loadu_ps(acc + 2 * p)));
+    }
+}
+
+}  // namespace
+
+DasKernels bestKernels() {
+    static const DasKernels k = [] {
+        __builtin_cpu_init();
+        if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") && __builtin_cpu_supports("avx512vl") &&
+            __builtin_cpu_supports("fma"))
+            return DasKernels{linearAvx512, cubicAvx512, "avx512"};
+        if (__builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma")) return DasKernels{linearAvx2, cubicScalar, "avx2"};
+        return DasKernels{linearScalar, cubicScalar, "scalar"};
+    }();
+    return k;
+}
+#else
+DasKernels bestKernels() { return scalarKernels(); }
+#endif
+
+DasKernels scalarKernels() { return DasKernels{linearScalar, cubicScalar, "scalar"}; }
+
 void dasCoherence(bool cubic, const float* base, const float* tof, const float* wt, const float* wr, float k, float mult,
-                  const float* tr, float hi, size_t n, float* ar, float* ai, float* s2, float* cnt) {
+                  const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt) {
     for (size_t p = 0; p < n; ++p) {
         float q = base[p] + tof[p];
         q = q < 1.0f ? 1.0f : q;
@@ -120,10 +222,9 @@ void dasCoherence(bool cubic, const float* base, const float* tof, const float* 
         const float f = q - float(i);
         float re, im;
         if (cubic) {
+            float c0, c1, c2, c3;
+            lagrange4(f, c0, c1, c2, c3);
             const float* s = tr + 2 * (i - 1);
-            const float fm1 = f - 1, fm2 = f - 2, fp1 = f + 1;
-            const float c0 = -f * fm1 * fm2 * (1.0f / 6), c1 = fp1 * fm1 * fm2 * 0.5f;
-            const float c2 = -fp1 * f * fm2 * 0.5f, c3 = fp1 * f * fm1 * (1.0f / 6);
             re = c0 * s[0] + c1 * s[2] + c2 * s[4] + c3 * s[6];
             im = c0 * s[1] + c1 * s[3] + c2 * s[5] + c3 * s[7];
         } else {
@@ -133,8 +234,8 @@ void dasCoherence(bool cubic, const float* base, const float* tof, const float* 
         }
         const float w1 = wt[p] * wr[p];
         const float w = k * w1;
-        ar[p] += w * re;
-        ai[p] += w * im;
+        acc[2 * p] += w * re;
+        acc[2 * p + 1] += w * im;
         // Each of the `mult` equal terms has weight k / mult.
         const float wu = w1 * (k / mult);
         s2[p] += mult * wu * wu * (re * re + im * im);

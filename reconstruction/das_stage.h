@@ -40,19 +40,30 @@ namespace detail {
 constexpr size_t kTracePad = 2;
 /// Stored complex samples per trace of n samples (guards before and after).
 constexpr size_t traceStride(size_t n) { return n + kTracePad + 3; }
+/// Kernels process pixels in groups of this many (tiles are padded to a multiple).
+constexpr size_t kLanes = 16;
 
-/// Hot loop, linear interpolation. For pixel p: position q = base[p] + tof[p] (in stored
-/// samples, guards included), clamped to [1, hi]; value = linear interpolation of the
-/// interleaved complex trace `tr` at q; weight k * wt[p] * wr[p]; accumulated into (ar, ai).
-void dasLinear(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi, size_t n,
-               float* ar, float* ai);
-/// Same with 4-point Lagrange (cubic) interpolation.
-void dasCubic(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi, size_t n,
-              float* ar, float* ai);
-/// Same as dasLinear/dasCubic and also accumulates |weighted sample|^2 into s2 and the number
-/// of contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.
+/// Hot loop signature. For pixel p < n (n a multiple of kLanes): position q = base[p] + tof[p]
+/// (in stored samples, guards included) clamped to [1, hi]; value = interpolation of the
+/// interleaved complex trace `tr` at q; weight (k wt[p]) wr[p]; accumulated into the
+/// interleaved complex accumulator acc[2p], acc[2p+1].
+using DasKernel = void (*)(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
+                           size_t n, float* acc);
+
+struct DasKernels {
+    DasKernel linear, cubic;
+    const char* name;  ///< "avx512", "avx2" or "scalar"
+};
+/// Portable kernels (any x86-64 or other CPU).
+DasKernels scalarKernels();
+/// The fastest kernels this CPU runs (chosen at run time: AVX-512, AVX2+FMA, else scalar).
+/// Every path gives the same result for any tile size or thread count on one machine.
+DasKernels bestKernels();
+
+/// As the kernels, and also accumulates |weighted sample|^2 into s2 and the number of
+/// contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.
 void dasCoherence(bool cubic, const float* base, const float* tof, const float* wt, const float* wr, float k, float mult,
-                  const float* tr, float hi, size_t n, float* ar, float* ai, float* s2, float* cnt);
+                  const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt);
 }  // namespace detail
 
 }  // namespace umbra::recon

@@ -76,12 +76,20 @@ struct Reconstructor::Impl {
     std::vector<int32_t> used_el;      // slot -> element
     std::vector<float> tx_weight;      // per transmit (plane wave / virtual source)
     std::vector<Tile> tiles;
-    size_t tile_max = 0;
+    size_t tile_max = 0;    // padded to a multiple of detail::kLanes
+    size_t acc_pixels = 0;  // pixels in all (padded) tiles
 
     // Per-frame state.
     std::vector<float> raw;  // [block_tx][nrx][ns]
-    std::vector<float> iq;   // [block_tx][nrx][stride][2], guards stay zero
-    std::vector<float> acc_re, acc_im, acc_s2, acc_n;  // tile-major
+    std::unique_ptr<float[]> iq_buf;  // [block_tx][nrx][stride][2]; guards zeroed once, data written per block
+    size_t iq_size = 0;
+    float* iqData() const { return iq_buf.get(); }
+    std::vector<float> acc, acc_s2, acc_n;  // tile-major; acc interleaved complex
+    detail::DasKernels kernels = detail::bestKernels();
+    enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
+    bool full_aperture = false;
+    std::vector<float> window_lut;  // window at |u| = i / (kLut - 1), i < kLut, for Hann / Tukey
+    static constexpr size_t kLut = 4097;
 
     struct Worker {
         std::unique_ptr<AnalyticSignal> analytic;
@@ -147,13 +155,19 @@ struct Reconstructor::Impl {
         const size_t tw = std::min<size_t>(nx, 32);
         const size_t th = std::max<size_t>(1, size_t(das.tile_pixels) / tw);
         size_t off = 0;
+        auto padded = [](size_t n) { return (n + detail::kLanes - 1) / detail::kLanes * detail::kLanes; };
         for (size_t iz = 0; iz < nz; iz += th)
             for (size_t ix = 0; ix < nx; ix += tw) {
                 Tile t{ix, iz, std::min(tw, nx - ix), std::min(th, nz - iz), off};
-                off += t.n();
-                tile_max = std::max(tile_max, t.n());
+                off += padded(t.n());
+                tile_max = std::max(tile_max, padded(t.n()));
                 tiles.push_back(t);
             }
+        acc_pixels = off;
+        apod = das.apodization == "rectangular" ? Apod::Rect : das.apodization == "tukey" ? Apod::Tukey : Apod::Hann;
+        full_aperture = das.aperture == "full";
+        window_lut.resize(kLut);
+        for (size_t i = 0; i < kLut; ++i) window_lut[i] = apodizationWeight(das.apodization, double(i) / double(kLut - 1), das.tukey_alpha);
 
         const size_t per_tx = nrx * stride * 2 * sizeof(float) + nrx * ns * sizeof(float);
         block_tx = std::clamp<size_t>(kBlockBudgetBytes / std::max<size_t>(per_tx, 1), 1, ntx);
@@ -187,25 +201,45 @@ struct Reconstructor::Impl {
         }
     }
 
-    // Aperture weight of element position xe for a pixel at (x, z).
-    float apertureWeight(double xe, double x, double z, double pitch, double xc, double half_len) const {
-        if (das.aperture == "full") {
-            if (das.apodization == "rectangular") return 1.0f;
-            return apodizationWeight(das.apodization, (xe - xc) / std::max(half_len, 1e-9), das.tukey_alpha);
+    // Window at normalised position |u| (linear interpolation in a table; 0 outside [-1, 1]).
+    float window(float u) const {
+        const float a = std::fabs(u);
+        if (a > 1.0f) return 0.0f;
+        if (apod == Apod::Rect) return 1.0f;
+        const float pos = a * float(kLut - 1);
+        const size_t i = std::min(size_t(pos), kLut - 2);
+        const float f = pos - float(i);
+        return window_lut[i] + f * (window_lut[i + 1] - window_lut[i]);
+    }
+
+    // Aperture weights of the element at xe for n pixels (x[p], z[p]).
+    void apertureWeights(double xe, const float* x, const float* z, size_t n, double pitch, double xc, double half_len, float* w) const {
+        if (full_aperture) {
+            const float v = apod == Apod::Rect ? 1.0f : window(float((xe - xc) / std::max(half_len, 1e-9)));
+            std::fill(w, w + n, v);
+            return;
         }
-        const double half = std::max(std::max(z, 0.0) / (2 * das.f_number), pitch);
-        if (das.apodization == "rectangular")  // edge element weighted by the part of its pitch inside: no jumps with depth
-            return float(std::clamp((half - std::fabs(xe - x)) / pitch + 0.5, 0.0, 1.0));
-        return apodizationWeight(das.apodization, (xe - x) / half, das.tukey_alpha);
+        const float k = float(1 / (2 * das.f_number)), fp = float(pitch), fxe = float(xe), ip = float(1 / pitch);
+        for (size_t p = 0; p < n; ++p) {
+            const float half = std::max(std::max(z[p], 0.0f) * k, fp);
+            const float d = std::fabs(fxe - x[p]);
+            // Rectangular: the edge element weighted by the part of its pitch inside (no jumps with depth).
+            w[p] = apod == Apod::Rect ? std::clamp((half - d) * ip + 0.5f, 0.0f, 1.0f) : window(d / half);
+        }
     }
 
     void beamformTile(Worker& W, const Tile& T, size_t b0, size_t b1) {
-        const size_t n = T.n();
+        const size_t n0 = T.n();
+        const size_t n = (n0 + detail::kLanes - 1) / detail::kLanes * detail::kLanes;  // padded lanes repeat the last pixel
         for (size_t j = 0; j < T.h; ++j)
             for (size_t i = 0; i < T.w; ++i) {
                 W.x[j * T.w + i] = float(grid.x_min_m + double(T.ix0 + i) * grid.step_m);
                 W.z[j * T.w + i] = float(grid.z_min_m + double(T.iz0 + j) * grid.step_m);
             }
+        for (size_t p = n0; p < n; ++p) {
+            W.x[p] = W.x[n0 - 1];
+            W.z[p] = W.z[n0 - 1];
+        }
         const double pitch = std::max(h.array.pitch_m(), 1e-6);
         double xlo = 1e300, xhi = -1e300;
         for (auto e : used_el) {
@@ -219,16 +253,13 @@ struct Reconstructor::Impl {
             float* tof = W.tof.data() + s * tile_max;
             float* w = W.w.data() + s * tile_max;
             model->pointTime(pos, W.x.data(), W.z.data(), n, tof);
+            for (size_t p = 0; p < n; ++p) tof[p] *= ffs;
+            apertureWeights(pos[0], W.x.data(), W.z.data(), n, pitch, xc, half_len, w);
             bool any = false;
-            for (size_t p = 0; p < n; ++p) {
-                tof[p] *= ffs;
-                w[p] = apertureWeight(pos[0], W.x[p], W.z[p], pitch, xc, half_len);
-                any = any || w[p] > 0;
-            }
+            for (size_t p = 0; p < n; ++p) any = any || w[p] > 0;
             W.any[s] = any;
         }
-        float* ar = acc_re.data() + T.offset;
-        float* ai = acc_im.data() + T.offset;
+        float* ac = acc.data() + 2 * T.offset;
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
         float* cn = das.coherence_factor ? acc_n.data() + T.offset : nullptr;
         const float hi = float(ns + detail::kTracePad);
@@ -266,15 +297,13 @@ struct Reconstructor::Impl {
                 }
                 const size_t s = size_t(slot_of_el[size_t(re)]);
                 if (!W.any[s]) continue;
-                const float* tr = iq.data() + ((t - b0) * nrx + r) * stride * 2;
+                const float* tr = iqData() + ((t - b0) * nrx + r) * stride * 2;
                 const float* tof = W.tof.data() + s * tile_max;
                 const float* wr = W.w.data() + s * tile_max;
                 if (s2)
-                    detail::dasCoherence(cubic, W.base.data(), tof, wt, wr, kt * mult, mult, tr, hi, n, ar, ai, s2, cn);
-                else if (cubic)
-                    detail::dasCubic(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ar, ai);
+                    detail::dasCoherence(cubic, W.base.data(), tof, wt, wr, kt * mult, mult, tr, hi, n, ac, s2, cn);
                 else
-                    detail::dasLinear(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ar, ai);
+                    (cubic ? kernels.cubic : kernels.linear)(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ac);
             }
         }
     }
@@ -292,15 +321,22 @@ struct Reconstructor::Impl {
         const auto t_start = Clock::now();
         double t_read = 0, t_analytic = 0, t_das = 0;
         const size_t npix = grid.nx() * grid.nz();
-        acc_re.assign(npix, 0.0f);
-        acc_im.assign(npix, 0.0f);
+        acc.assign(2 * acc_pixels, 0.0f);
         if (das.coherence_factor) {
-            acc_s2.assign(npix, 0.0f);
-            acc_n.assign(npix, 0.0f);
+            acc_s2.assign(acc_pixels, 0.0f);
+            acc_n.assign(acc_pixels, 0.0f);
         }
         const size_t bsz = std::min(block_tx, ntx);
         raw.resize(bsz * nrx * ns);
-        if (iq.size() != bsz * nrx * stride * 2) iq.assign(bsz * nrx * stride * 2, 0.0f);
+        if (iq_size != bsz * nrx * stride * 2) {
+            iq_size = bsz * nrx * stride * 2;
+            iq_buf.reset(new float[iq_size]);  // not value-initialised: only the guards need zeros
+            for (size_t tr = 0; tr < bsz * nrx; ++tr) {
+                float* p = iq_buf.get() + tr * stride * 2;
+                std::fill(p, p + 2 * detail::kTracePad, 0.0f);
+                std::fill(p + 2 * (detail::kTracePad + ns), p + 2 * stride, 0.0f);
+            }
+        }
 
         const size_t nblocks = (ntx + bsz - 1) / bsz;
         const double units = double(nblocks * tiles.size());
@@ -330,7 +366,7 @@ struct Reconstructor::Impl {
                 [&](int w, size_t j) {
                     const auto [tl, r] = jobs[j];
                     workers[size_t(w)].analytic->run(raw.data() + (tl * nrx + r) * ns,
-                                                     iq.data() + ((tl * nrx + r) * stride + detail::kTracePad) * 2, bw);
+                                                     iqData() + ((tl * nrx + r) * stride + detail::kTracePad) * 2, bw);
                 },
                 [&](size_t) { return poll(0, 0); });
             t_analytic += since(t0);
@@ -356,8 +392,9 @@ struct Reconstructor::Impl {
             for (size_t j = 0; j < T.h; ++j)
                 for (size_t i = 0; i < T.w; ++i) {
                     const size_t q = T.offset + j * T.w + i;
-                    float e = std::sqrt(acc_re[q] * acc_re[q] + acc_im[q] * acc_im[q]);
-                    if (das.coherence_factor) e *= coherenceFactor(acc_re[q], acc_im[q], acc_s2[q], acc_n[q]);
+                    const float re = acc[2 * q], im = acc[2 * q + 1];
+                    float e = std::sqrt(re * re + im * im);
+                    if (das.coherence_factor) e *= coherenceFactor(re, im, acc_s2[q], acc_n[q]);
                     f.envelope[(T.iz0 + j) * nx + T.ix0 + i] = e;
                 }
         const double t_env = since(t0);

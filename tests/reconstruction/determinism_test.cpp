@@ -4,8 +4,10 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <random>
 
 #include "recon_test_util.h"
+#include "reconstruction/das_stage.h"
 #include "reconstruction/pipeline.h"
 
 using namespace umbra;
@@ -70,4 +72,29 @@ TEST(determinism_test, reciprocity_matches_the_full_pair_sum) {
     auto full = r;
     full.setNumber("das.reciprocity", 0);
     EXPECT_LE(maxRelDiff(run(fmc, r, 2, 1024), run(fmc, full, 2, 1024)), 1e-4);
+}
+
+// The vector kernels chosen at run time compute the same sums as the portable scalar ones
+// (linear and 4-point Lagrange interpolation), on random traces and delays.
+TEST(determinism_test, vector_kernels_match_scalar_kernels) {
+    std::mt19937 rng(5);
+    std::uniform_real_distribution<float> u(-1, 1), pos(-20, 700), wgt(0, 1);
+    const size_t ns = 600, n = 256;
+    std::vector<float> tr(2 * recon::detail::traceStride(ns), 0.0f);
+    for (size_t j = 2 * recon::detail::kTracePad; j < 2 * (recon::detail::kTracePad + ns); ++j) tr[j] = u(rng);
+    std::vector<float> base(n), tof(n), wt(n), wr(n);
+    for (size_t p = 0; p < n; ++p) {
+        base[p] = pos(rng);
+        tof[p] = pos(rng) * 0.1f;
+        wt[p] = wgt(rng);
+        wr[p] = p % 7 == 0 ? 0.0f : wgt(rng);
+    }
+    const float hi = float(ns + recon::detail::kTracePad);
+    const auto best = recon::detail::bestKernels(), ref = recon::detail::scalarKernels();
+    for (int cubic = 0; cubic < 2; ++cubic) {
+        std::vector<float> a(2 * n, 0.5f), b(2 * n, 0.5f);
+        (cubic ? best.cubic : best.linear)(base.data(), tof.data(), wt.data(), wr.data(), 2.0f, tr.data(), hi, n, a.data());
+        (cubic ? ref.cubic : ref.linear)(base.data(), tof.data(), wt.data(), wr.data(), 2.0f, tr.data(), hi, n, b.data());
+        for (size_t i = 0; i < 2 * n; ++i) ASSERT_NEAR(a[i], b[i], 1e-5) << best.name << " cubic " << cubic << " at " << i;
+    }
 }
