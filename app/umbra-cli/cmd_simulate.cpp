@@ -42,8 +42,8 @@ int cmdSimulate(const Argv& argv) {
             std::fputs(helpText(usage,
                                 "Simulates the capture described by SCENE.json (schema: docs/scene-format.md) and\n"
                                 "writes it as a capture file (format v1). The result is labelled synthetic data.\n"
-                                "Exit 0 on success; 2 for a bad scene or bad options (the message names the file\n"
-                                "and the key); 1 if the capture cannot be written.",
+                                "Exit 0 on success; 2 for a bad scene, bad options or an output file that cannot\n"
+                                "be created (the message names the file and the key); 1 for other failures.",
                                 specs)
                            .c_str(),
                        stdout);
