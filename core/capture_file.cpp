@@ -28,6 +28,14 @@ std::mutex& h5Mutex() {
     return m;
 }
 
+// A string from the file, safe to put into a one-line message: control and non-ASCII bytes
+// become '?', and it is cut to 60 characters.
+std::string printable(const std::string& s) {
+    std::string out;
+    for (unsigned char c : s.substr(0, 60)) out += (c >= 0x20 && c < 0x7f) ? char(c) : '?';
+    return s.size() > 60 ? out + "..." : out;
+}
+
 // Opens a group; a missing required group or an object of another kind is a problem.
 Hid openGroup(hid_t file, const char* path, bool required, std::vector<Problem>& P) {
     if (!exists(file, path)) {
@@ -59,7 +67,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
     // Root
     auto fmt = readStringAttr(file, "umbra_format", err);
     if (!fmt) { add("/@umbra_format", err.empty() ? "is missing (not an Umbra capture?)" : err); return; }
-    if (*fmt != "capture") { add("/@umbra_format", "is '" + *fmt + "'; expected 'capture'"); return; }
+    if (*fmt != "capture") { add("/@umbra_format", "is '" + printable(*fmt) + "'; expected 'capture'"); return; }
     auto ver = readIntAttr(file, "umbra_format_version", err);
     if (!ver) { add("/@umbra_format_version", err.empty() ? "is missing" : err); return; }
     if (*ver != 1) { add("/@umbra_format_version", "is " + std::to_string(*ver) + "; this program reads version 1"); return; }
@@ -93,7 +101,7 @@ void parseHeader(hid_t file, HeaderParse& out) {
         auto kind = readStringAttr(g.get(), "kind", err);
         if (!kind) add("/transmit@kind", err.empty() ? "is missing" : err);
         else if (auto k = transmitKindFromString(*kind); !k)
-            add("/transmit@kind", "is '" + *kind + "'; expected single_element, plane_wave or virtual_source");
+            add("/transmit@kind", "is '" + printable(*kind) + "'; expected single_element, plane_wave or virtual_source");
         else {
             h.transmit.kind = *k;
             if (*k == TransmitKind::SingleElement) {

@@ -1,5 +1,12 @@
 // SPDX-License-Identifier: MIT
+#include <poll.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <csignal>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <nlohmann/json.hpp>
 #include <sstream>
@@ -17,6 +24,100 @@ std::string fmt(double v, int prec = 3) {
     os << v;
     return os.str();
 }
+
+// Checks a capture in a child process. The HDF5 library itself can crash, or loop forever,
+// on some damaged files (corrupted object headers or heaps); run in a child, such a failure
+// becomes one reported problem and umbra-cli still exits 2. The child first opens and checks
+// the header, which takes milliseconds on a sound file, and reports that it got through; a
+// header that does not get through within kHeaderSeconds is given up on. With `full` the
+// child then reads every trace (as validate does), which has no time limit since large
+// captures legitimately take long. Falls back to an in-process check if fork() fails.
+// The header deadline is 30 s, or UMBRA_HEADER_TIMEOUT_S seconds (1..3600) if set.
+int headerSeconds() {
+    if (const char* e = std::getenv("UMBRA_HEADER_TIMEOUT_S")) {
+        int v = std::atoi(e);
+        if (v >= 1 && v <= 3600) return v;
+    }
+    return 30;
+}
+
+std::vector<core::Problem> checkIsolated(const std::string& path, bool full) {
+    auto header = [&]() -> std::vector<core::Problem> {
+        try {
+            core::CaptureReader r(path);
+            return {};
+        } catch (const core::InputError& e) {
+            return e.problems();
+        } catch (const std::exception& e) {
+            return {{"", e.what()}};
+        }
+    };
+    int fds[2];
+    if (pipe(fds) != 0) return full ? core::CaptureReader::validate(path) : header();
+    std::fflush(nullptr);
+    const pid_t pid = fork();
+    if (pid < 0) {
+        close(fds[0]);
+        close(fds[1]);
+        return full ? core::CaptureReader::validate(path) : header();
+    }
+    if (pid == 0) {
+        close(fds[0]);
+        auto send = [&](const std::string& out) {
+            size_t done = 0;
+            while (done < out.size()) {
+                ssize_t n = write(fds[1], out.data() + done, out.size() - done);
+                if (n < 0 && errno == EINTR) continue;
+                if (n <= 0) _exit(3);
+                done += size_t(n);
+            }
+        };
+        auto problems = header();
+        send("H");  // the header was read (well or badly) in time
+        if (problems.empty() && full) problems = core::CaptureReader::validate(path);
+        nlohmann::json j = nlohmann::json::array();
+        for (auto& p : problems) j.push_back({p.where, p.what});
+        send(j.dump(-1, ' ', false, nlohmann::json::error_handler_t::replace));
+        close(fds[1]);
+        _exit(0);
+    }
+    close(fds[1]);
+    std::string buf;
+    char tmp[4096];
+    bool timed_out = false;
+    for (;;) {
+        if (buf.empty()) {  // still in the header phase: wait with a deadline
+            pollfd pfd{fds[0], POLLIN, 0};
+            int r = poll(&pfd, 1, headerSeconds() * 1000);
+            if (r < 0 && errno == EINTR) continue;
+            if (r == 0) {
+                timed_out = true;
+                kill(pid, SIGKILL);
+                break;
+            }
+        }
+        ssize_t n = read(fds[0], tmp, sizeof tmp);
+        if (n < 0 && errno == EINTR) continue;
+        if (n <= 0) break;
+        buf.append(tmp, size_t(n));
+    }
+    close(fds[0]);
+    int status = 0;
+    while (waitpid(pid, &status, 0) < 0 && errno == EINTR) {}
+    if (timed_out)
+        return {{"", "damaged HDF5 structure: reading the header did not finish within " + std::to_string(headerSeconds()) + " s"}};
+    if (WIFEXITED(status) && WEXITSTATUS(status) == 0 && buf.size() > 1 && buf[0] == 'H') {
+        try {
+            std::vector<core::Problem> problems;
+            for (auto& p : nlohmann::json::parse(buf.substr(1)))
+                problems.push_back({p.at(0).get<std::string>(), p.at(1).get<std::string>()});
+            return problems;
+        } catch (const std::exception&) {
+        }
+    }
+    std::string why = WIFSIGNALED(status) ? "signal " + std::to_string(WTERMSIG(status)) : "status " + std::to_string(WEXITSTATUS(status));
+    return {{"", "damaged HDF5 structure: reading it failed inside the HDF5 library (" + why + ")"}};
+}
 }  // namespace
 
 int cmdValidate(const Argv& argv) {
@@ -32,7 +133,7 @@ int cmdValidate(const Argv& argv) {
             return 0;
         }
         const std::string path = a.positional()[0];
-        auto problems = core::CaptureReader::validate(path);
+        auto problems = checkIsolated(path, true);
         if (problems.empty()) {
             if (!a.has("--quiet")) std::printf("%s: valid capture (format v1)\n", path.c_str());
             return 0;
@@ -58,6 +159,9 @@ int cmdInfo(const Argv& argv) {
             return 0;
         }
         const std::string path = a.positional()[0];
+        // Header checked in a child first, so that a library crash on a damaged file is a
+        // message, not a crash; then opened here.
+        if (auto problems = checkIsolated(path, false); !problems.empty()) throw core::InputError(path, problems);
         core::CaptureReader r(path);
         const auto& h = r.header();
         const double fs = h.receive.sampling_frequency_hz;
