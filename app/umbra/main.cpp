@@ -3,13 +3,15 @@
 //
 //   umbra [CAPTURE.h5 | CASE.umbracase]
 //   umbra --demo DIR                      weld coupon (+ Phantom P-2 as a second capture) from DIR
-//   umbra ... --timings                   print display re-render and beamforming times
+//   umbra ... --timings [--set stage.param=value ...]   print display re-render and beamforming times
 //   umbra ... --screenshot FILE [--demo-annotate] [--capture N] [--export FILE]
 #include <QApplication>
 #include <QCommandLineParser>
 #include <QTimer>
 
+#include <algorithm>
 #include <cstdio>
+#include <vector>
 
 #include "ui/controller/case_controller.h"
 #include "ui/main/main_window.h"
@@ -32,8 +34,9 @@ int main(int argc, char** argv) {
     QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
     QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
+    QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, timings, shot, annotate, capture, exportOpt, frame, timeout}) cl.addOption(o);
+    for (const auto& o : {demo, timings, shot, annotate, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -54,6 +57,52 @@ int main(int argc, char** argv) {
     const size_t cap = cl.value(capture).toULongLong();
     if (ok && cap > 0 && cap < ctl->captureCount()) ctl->setActiveCapture(cap);
     if (ok && cl.isSet(frame)) ctl->setCurrentFrame(cl.value(frame).toULongLong());
+    if (ok && cl.isSet(set)) {
+        umbra::core::Recipe r = ctl->recipe();
+        try {
+            for (const QString& a : cl.values(set)) r.applyAssignment(a.toStdString());
+        } catch (const std::exception& e) {
+            std::fprintf(stderr, "umbra: %s\n", e.what());
+            return 2;
+        }
+        ctl->applyRecipe(r);
+    }
+
+    // Ten display-only re-renders (gain steps), reported on stderr; the recipe is put back.
+    auto reportTimings = [ctl] {
+        const umbra::core::Recipe keep = ctl->recipe();
+        const std::string key = umbra::ui::findRecipeKey(keep, "gain_db");
+        if (key.empty() || !ctl->hasImage()) return;
+        std::vector<double> ms;
+        for (int i = 1; i <= 10; ++i) {
+            umbra::core::Recipe r = keep;
+            r.setNumber(key, keep.number(key) + i);
+            ctl->applyRecipe(r);
+            ms.push_back(ctl->lastRenderMs());
+        }
+        ctl->applyRecipe(keep);
+        std::sort(ms.begin(), ms.end());
+        const auto* f = ctl->envelope();
+        std::fprintf(stderr,
+                     "umbra timings: display-only re-render of %zu x %zu (x by depth): min %.2f ms, median %.2f ms, "
+                     "max %.2f ms over %zu gain changes; beamforming of frame %zu took %.3f s\n",
+                     f->nx(), f->nz(), ms.front(), ms[ms.size() / 2], ms.back(), ms.size(), ctl->currentFrame(),
+                     ctl->lastBeamformSeconds());
+    };
+    // Measure when the worker is idle (the top view's background frames share the cores).
+    auto idle = [ctl] {
+        const bool top_done = !ctl->isEncodedScan() || ctl->topViewFramesDone() >= ctl->frameCount();
+        return ctl->hasImage() && !ctl->isBusy() && top_done;
+    };
+    if (opt.timings && ok && !screenshot) {
+        auto* t = new QTimer(&w);
+        QObject::connect(t, &QTimer::timeout, &w, [t, idle, reportTimings] {
+            if (!idle()) return;
+            t->stop();
+            reportTimings();
+        });
+        t->start(100);
+    }
 
     if (screenshot) {
         if (!ok) return 1;
@@ -63,12 +112,13 @@ int main(int argc, char** argv) {
         const double limit_s = cl.value(timeout).toDouble();
         auto* timer = new QTimer(&w);
         auto* elapsed = new double(0);
-        QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed] {
+        const bool timed = opt.timings;
+        QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings] {
             *elapsed += 0.25;
             const bool image = ctl->hasImage();
-            const bool top_done = !ctl->isEncodedScan() || ctl->topViewFramesDone() >= ctl->frameCount();
-            if (!(image && top_done) && *elapsed < limit_s) return;
+            if (!idle() && *elapsed < limit_s) return;
             timer->stop();
+            if (timed && image) reportTimings();
             if (!image) {
                 std::fprintf(stderr, "umbra: no image after %.0f s\n", *elapsed);
                 QApplication::exit(2);

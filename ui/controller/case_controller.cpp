@@ -47,7 +47,11 @@ CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new B
     connect(&undo_, &QUndoStack::cleanChanged, this, [this](bool) { emit dirtyChanged(isDirty()); });
 }
 
-CaseController::~CaseController() = default;
+CaseController::~CaseController() {
+    // Stop and join the worker while everything it reports to is still alive.
+    delete worker_;
+    worker_ = nullptr;
+}
 
 // ---------------------------------------------------------------------------------- case
 
@@ -450,10 +454,19 @@ void CaseController::rebuildTopView() {
     float top = 0;
     try {
         const auto gain = recon::tgcGain(reader_->header(), recipe_, any->z_m);
+        // Depth gate: leave out the near field and, for a plate of known thickness, the back
+        // wall (which would otherwise be the peak of every column).
+        const auto& zs = any->z_m;
+        const double zspan = zs.back() - zs.front();
+        double g0 = zs.front() + 0.04 * zspan, g1 = zs.back();
+        if (const auto& t = reader_->header().medium.thickness_m; t && *t > 0) g1 = std::min(g1, *t - 1.5e-3);
+        if (g1 <= g0) g0 = zs.front(), g1 = zs.back();
+        top_gate_mm_ = {g0 * 1e3, g1 * 1e3};
         for (const auto& [f, fr] : cache_) {
             if (fr->nx() != nx || f >= nf) continue;
             have[f] = true;
             for (size_t z = 0; z < fr->nz(); ++z) {
+                if (fr->z_m[z] < g0 || fr->z_m[z] > g1) continue;
                 const float g = z < gain.size() ? gain[z] : 1.0f;
                 const float* row = fr->envelope.data() + z * nx;
                 for (size_t x = 0; x < nx; ++x) peak[f * nx + x] = std::max(peak[f * nx + x], row[x] * g);

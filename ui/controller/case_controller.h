@@ -112,6 +112,8 @@ public:
     /// are those whose frame is beamformed.
     const QImage& topViewImage() const { return top_image_; }
     size_t topViewFramesDone() const { return cache_.size(); }
+    /// Depth gate of the top view, mm (near field and a known plate's back wall left out).
+    std::pair<double, double> topViewGateMm() const { return top_gate_mm_; }
 
     // ------------------------------------------------------------------ measurements
     const std::vector<core::Measurement>& measurements() const;
@@ -191,6 +193,7 @@ private:
     std::vector<float> db_;
     QImage image_;
     QImage top_image_;
+    std::pair<double, double> top_gate_mm_{0, 0};
     double render_ms_ = 0;
     double beamform_s_ = 0;
     double fidelity_db_ = 0;

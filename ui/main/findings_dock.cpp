@@ -1,97 +1,75 @@
 // SPDX-License-Identifier: MIT
 #include "ui/main/findings_dock.h"
 
-#include <QHeaderView>
-#include <QLabel>
-#include <QListWidget>
-#include <QPlainTextEdit>
-#include <QPushButton>
-#include <QTableWidget>
-#include <QVBoxLayout>
-
+#include "ui/calipers/measurement_table.h"
 #include "ui/controller/case_controller.h"
-#include "ui/viewer/scene_painter.h"
+#include "ui/findings/findings_pane.h"
 
 namespace umbra::ui {
 
 namespace {
-
-QWidget* simpleFindings(CaseController* ctl, QWidget* parent) {
-    auto* w = new QWidget(parent);
-    auto* v = new QVBoxLayout(w);
-    auto* caution = new QLabel(QObject::tr("Umbra is an aid: written procedures, the applicable codes and qualified, "
-                                           "licensed professionals decide."));
-    caution->setWordWrap(true);
-    caution->setStyleSheet("color:#5b4a14; background:#fbf3da; border:1px solid #eadba8; padding:4px 6px; border-radius:3px;");
-    v->addWidget(caution);
-    auto* tech = new QPlainTextEdit;
-    tech->setReadOnly(true);
-    tech->setMaximumHeight(110);
-    v->addWidget(new QLabel(QObject::tr("Technique")));
-    v->addWidget(tech);
-    auto* add = new QPushButton(QObject::tr("Add finding from selected measurement"));
-    v->addWidget(add);
-    auto* list = new QListWidget;
-    v->addWidget(list, 1);
-    QObject::connect(add, &QPushButton::clicked, w, [ctl] {
-        if (!ctl->selectedMeasurement().isEmpty()) ctl->addFindingFromMeasurement(ctl->selectedMeasurement().toStdString());
-    });
-    auto refresh = [ctl, tech, list] {
-        tech->setPlainText(ctl->techniqueText());
-        list->clear();
-        for (const auto& f : ctl->findings())
-            list->addItem(QStringLiteral("F%1  %2 — %3")
-                              .arg(f.number)
-                              .arg(QString::fromStdString(f.indication.location),
-                                   QString::fromStdString(core::interpretationLabel(f.interpretation))));
-    };
-    QObject::connect(ctl, &CaseController::findingsChanged, w, refresh);
-    QObject::connect(ctl, &CaseController::imageChanged, w, refresh);
-    QObject::connect(ctl, &CaseController::recipeChanged, w, refresh);
-    return w;
+std::vector<std::string> allMeasurementIds(const CaseController* ctl) {
+    std::vector<std::string> ids;
+    for (const auto& c : ctl->document().captures)
+        for (const auto& m : c.measurements) ids.push_back(m.id);
+    return ids;
 }
-
-QWidget* simpleTable(CaseController* ctl, QWidget* parent) {
-    auto* t = new QTableWidget(parent);
-    t->setColumnCount(4);
-    t->setHorizontalHeaderLabels({QObject::tr("Id"), QObject::tr("Kind"), QObject::tr("Label"), QObject::tr("Values")});
-    t->horizontalHeader()->setStretchLastSection(true);
-    t->setSelectionBehavior(QAbstractItemView::SelectRows);
-    t->setEditTriggers(QAbstractItemView::NoEditTriggers);
-    t->verticalHeader()->hide();
-    auto refresh = [ctl, t] {
-        const auto& ms = ctl->measurements();
-        t->setRowCount(static_cast<int>(ms.size()));
-        const auto u = ctl->uncertaintyModel();
-        for (int i = 0; i < static_cast<int>(ms.size()); ++i) {
-            const auto& m = ms[static_cast<size_t>(i)];
-            std::string vals;
-            try {
-                vals = core::formatQuantities(core::evaluate(m, u));
-            } catch (const std::exception& e) {
-                vals = e.what();
-            }
-            t->setItem(i, 0, new QTableWidgetItem(QString::fromStdString(m.id)));
-            t->setItem(i, 1, new QTableWidgetItem(QString::fromStdString(core::kindName(m.kind))));
-            t->setItem(i, 2, new QTableWidgetItem(QString::fromStdString(m.label)));
-            t->setItem(i, 3, new QTableWidgetItem(QString::fromStdString(vals)));
-        }
-    };
-    QObject::connect(ctl, &CaseController::measurementsChanged, t, refresh);
-    QObject::connect(ctl, &CaseController::imageChanged, t, refresh);
-    QObject::connect(t, &QTableWidget::cellClicked, t, [ctl, t](int row, int) {
-        if (auto* it = t->item(row, 0)) ctl->setSelectedMeasurement(it->text());
-    });
-    return t;
-}
-
 }  // namespace
 
-FindingsDocks buildFindingsDocks(CaseController* controller, QWidget* parent) {
-    FindingsDocks d;
-    d.findings = simpleFindings(controller, parent);
-    d.measurements = simpleTable(controller, parent);
-    return d;
+FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
+    auto* pane = new FindingsPane(parent);
+    auto* table = new MeasurementTable(parent);
+
+    // Controller -> widgets (setters never emit edits).
+    auto refreshDocument = [ctl, pane] {
+        pane->setDocument(ctl->document());
+        pane->setKnownMeasurements(allMeasurementIds(ctl));
+        pane->setTechnique(ctl->techniqueText());
+    };
+    QObject::connect(ctl, &CaseController::caseChanged, pane, refreshDocument);
+    QObject::connect(ctl, &CaseController::captureChanged, pane, refreshDocument);
+    QObject::connect(ctl, &CaseController::findingsChanged, pane, [ctl, pane] { pane->setFindings(ctl->findings()); });
+    QObject::connect(ctl, &CaseController::imageChanged, pane, [ctl, pane] { pane->setTechnique(ctl->techniqueText()); });
+    QObject::connect(ctl, &CaseController::recipeChanged, pane, [ctl, pane] { pane->setTechnique(ctl->techniqueText()); });
+
+    auto refreshTable = [ctl, table] {
+        table->setMeasurements(ctl->measurements(), ctl->uncertaintyModel());
+        table->selectMeasurement(ctl->selectedMeasurement());
+    };
+    QObject::connect(ctl, &CaseController::measurementsChanged, table, [ctl, pane, refreshTable] {
+        refreshTable();
+        pane->setKnownMeasurements(allMeasurementIds(ctl));
+    });
+    QObject::connect(ctl, &CaseController::captureChanged, table, refreshTable);
+    QObject::connect(ctl, &CaseController::imageChanged, table, refreshTable);  // pixel size may change
+    QObject::connect(ctl, &CaseController::selectionChanged, table, [table](const QString& id) { table->selectMeasurement(id); });
+
+    // Widgets -> controller (undoable edits).
+    QObject::connect(pane, &FindingsPane::findingsEdited, ctl,
+                     [ctl](const std::vector<core::Finding>& fs, const QString& what) { ctl->editFindings(fs, what); });
+    QObject::connect(pane, &FindingsPane::caseTextEdited, ctl, [ctl](const core::CaseDocument& d) { ctl->setCaseText(d); });
+    QObject::connect(pane, &FindingsPane::findingSelected, ctl, [ctl](const QString& id) {
+        // Show the finding's first measurement (and its frame).
+        for (const auto& f : ctl->findings())
+            if (QString::fromStdString(f.id) == id && !f.indication.measurement_ids.empty()) {
+                const auto* m = ctl->measurement(f.indication.measurement_ids.front());
+                if (!m) return;
+                ctl->setCurrentFrame(m->frame_index);
+                ctl->setSelectedMeasurement(QString::fromStdString(m->id));
+            }
+    });
+    QObject::connect(table, &MeasurementTable::selected, ctl, [ctl](const QString& id) {
+        if (const auto* m = ctl->measurement(id.toStdString())) ctl->setCurrentFrame(m->frame_index);
+        ctl->setSelectedMeasurement(id);
+    });
+    QObject::connect(table, &MeasurementTable::labelEdited, ctl,
+                     [ctl](const QString& id, const QString& t) { ctl->relabelMeasurement(id.toStdString(), t.toStdString()); });
+    QObject::connect(table, &MeasurementTable::deleteRequested, ctl,
+                     [ctl](const QString& id) { ctl->deleteMeasurement(id.toStdString()); });
+
+    refreshDocument();
+    refreshTable();
+    return {pane, table};
 }
 
 }  // namespace umbra::ui

@@ -117,7 +117,7 @@ void MainWindow::buildDocks() {
     auto* rd = new QDockWidget(tr("Recipe"), this);
     rd->setObjectName("RecipeDock");
     rd->setWidget(recipe_);
-    rd->setMinimumWidth(270);
+    rd->setMinimumWidth(300);
     addDockWidget(Qt::LeftDockWidgetArea, rd);
     connect(recipe_, &RecipePanel::loadRecipeRequested, this, &MainWindow::loadRecipe);
     connect(recipe_, &RecipePanel::saveRecipeRequested, this, &MainWindow::saveRecipe);
@@ -148,7 +148,8 @@ void MainWindow::buildDocks() {
     top_dock_->setWidget(top_);
     addDockWidget(Qt::BottomDockWidgetArea, top_dock_);
     splitDockWidget(td, top_dock_, Qt::Horizontal);
-    resizeDocks({td}, {230}, Qt::Vertical);
+    resizeDocks({td}, {240}, Qt::Vertical);
+    resizeDocks({td, top_dock_}, {880, 520}, Qt::Horizontal);
     resizeDocks({fd, md}, {420, 260}, Qt::Vertical);
 }
 
@@ -274,8 +275,15 @@ void MainWindow::buildActions() {
     tb->addSeparator();
     for (QAction* t : tools_->actions()) tb->addAction(t);
     tb->addSeparator();
-    tb->addAction(undo_);
-    tb->addAction(redo_);
+    // Toolbar buttons with fixed text (the menu entries name the edit).
+    QAction* tu = tb->addAction(tr("Undo"), ctl_->undoStack(), &QUndoStack::undo);
+    QAction* tr_ = tb->addAction(tr("Redo"), ctl_->undoStack(), &QUndoStack::redo);
+    tu->setEnabled(false);
+    tr_->setEnabled(false);
+    connect(ctl_->undoStack(), &QUndoStack::canUndoChanged, tu, &QAction::setEnabled);
+    connect(ctl_->undoStack(), &QUndoStack::canRedoChanged, tr_, &QAction::setEnabled);
+    connect(ctl_->undoStack(), &QUndoStack::undoTextChanged, tu, [tu](const QString& t) { tu->setToolTip(tr("Undo %1 (Ctrl+Z)").arg(t)); });
+    connect(ctl_->undoStack(), &QUndoStack::redoTextChanged, tr_, [tr_](const QString& t) { tr_->setToolTip(tr("Redo %1 (Ctrl+Shift+Z)").arg(t)); });
     tb->addSeparator();
     capture_combo_ = new QComboBox;
     capture_combo_->setToolTip(tr("Capture of the case shown"));
@@ -609,10 +617,13 @@ void MainWindow::demoAnnotate() {
     const auto& db = ctl_->db();
     if (!f || f->nx() < 3 || f->nz() < 3 || db.size() != f->nx() * f->nz()) return;
     const size_t nx = f->nx(), nz = f->nz();
-    // Strongest echo between 15 % and 75 % of the depth range (leaves out surface and back wall).
+    // Strongest echo between 15 % and 75 % of the depth range, above a known back wall.
     size_t bx = 0, bz = nz / 2;
     float best = -1e30f;
-    for (size_t iz = nz * 15 / 100; iz < nz * 75 / 100; ++iz)
+    size_t zend = nz * 75 / 100;
+    if (const auto& t = ctl_->header().medium.thickness_m; t && *t > 0)
+        while (zend > nz / 5 && f->z_m[zend - 1] > *t - 2e-3) --zend;
+    for (size_t iz = nz * 15 / 100; iz < zend; ++iz)
         for (size_t ix = nx / 10; ix < nx * 9 / 10; ++ix)
             if (db[iz * nx + ix] > best) best = db[iz * nx + ix], bx = ix, bz = iz;
     // -6 dB extent around it along the row and the column.

@@ -47,7 +47,11 @@ void TopView::paintEvent(QPaintEvent*) {
     }
     const size_t n = ctl_->frameCount();
     p.drawText(QRectF(8, 2, width() - 16, 18), Qt::AlignLeft | Qt::AlignVCenter,
-               tr("Peak over depth — %1 of %2 frames beamformed").arg(ctl_->topViewFramesDone()).arg(n));
+               tr("Peak over depth %1–%2 mm · %3 of %4 frames beamformed · click to pick a frame")
+                   .arg(ctl_->topViewGateMm().first, 0, 'f', 1)
+                   .arg(ctl_->topViewGateMm().second, 0, 'f', 1)
+                   .arg(ctl_->topViewFramesDone())
+                   .arg(n));
     const QRectF r = plotRect();
     if (img.isNull() || !fr) {
         p.drawText(r, Qt::AlignCenter, tr("Beamforming frames…"));

@@ -78,7 +78,7 @@ void TracePlot::paintEvent(QPaintEvent*) {
         p.setPen(axis);
         p.drawText(QRectF(a.left() - 44, Y(d) - 7, 40, 14), Qt::AlignRight | Qt::AlignVCenter, QString::number(d, 'f', 0));
     }
-    p.drawText(QRectF(a.right() - 120, a.bottom() + 2, 120, 14), Qt::AlignRight | Qt::AlignVCenter, tr("depth, mm"));
+    p.drawText(QRectF(a.left(), 2, a.width(), 14), Qt::AlignRight | Qt::AlignVCenter, tr("dB (vertical) against depth, mm"));
     p.setPen(axis);
     p.drawRect(a);
     // Trace.
@@ -114,7 +114,7 @@ void TracePlot::paintEvent(QPaintEvent*) {
         p.setPen(axis);
         for (double t = std::ceil(rf_t0_ / st) * st; t <= t1 + 1e-12; t += st)
             p.drawText(QRectF(XT(t) - 25, b.bottom() + 2, 50, 14), Qt::AlignCenter, QString::number(t, 'g', 5));
-        p.drawText(QRectF(b.right() - 120, b.bottom() + 2, 120, 14), Qt::AlignRight | Qt::AlignVCenter, tr("time, µs"));
+        p.drawText(QRectF(b.left(), b.top() - 16, b.width(), 14), Qt::AlignRight | Qt::AlignVCenter, tr("time, µs"));
         p.drawRect(b);
         QPainterPath rp;
         const size_t n = rf_.size();

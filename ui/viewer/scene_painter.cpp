@@ -71,13 +71,18 @@ QString measurementLabel(const core::Measurement& m, const core::UncertaintyMode
 
 namespace {
 
-void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor& colour, double k) {
+void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor& colour, double k, const QRectF& inside) {
     QFont f = p.font();
     f.setPointSizeF(8.5 * k);
     p.setFont(f);
     QFontMetricsF fm(f);
     QRectF r = fm.boundingRect(text).adjusted(-4 * k, -2 * k, 4 * k, 2 * k);
     r.moveTopLeft(at + QPointF(8 * k, -r.height() - 4 * k));
+    // Keep the label inside the image area.
+    if (r.right() > inside.right() - 2 * k) r.moveRight(inside.right() - 2 * k);
+    if (r.left() < inside.left() + 2 * k) r.moveLeft(inside.left() + 2 * k);
+    if (r.top() < inside.top() + 2 * k) r.moveTop(at.y() + 6 * k);
+    if (r.bottom() > inside.bottom() - 2 * k) r.moveBottom(inside.bottom() - 2 * k);
     p.setPen(Qt::NoPen);
     p.setBrush(QColor(10, 12, 16, 200));
     p.drawRoundedRect(r, 3 * k, 3 * k);
@@ -120,6 +125,7 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
             p.setPen(pen);
             p.drawLine(px[0] + QPointF(-7 * k, 0), px[0] + QPointF(7 * k, 0));
             p.drawLine(px[0] + QPointF(0, -7 * k), px[0] + QPointF(0, 7 * k));
+            label_at = QPointF(std::max(img.left(), vt.viewport().left()), px[0].y());  // label at the line's left end
             break;
         }
         case core::MeasurementKind::ExtentBox:
@@ -156,7 +162,7 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
     QString text = measurementLabel(m, sc.uncertainty);
     auto it = sc.finding_numbers.find(m.id);
     if (it != sc.finding_numbers.end()) text = QStringLiteral("F%1 · ").arg(it->second) + text;
-    drawLabel(p, label_at, text, sel ? Qt::white : col, k);
+    drawLabel(p, label_at, text, sel ? Qt::white : col, k, vt.viewport());
 }
 
 void drawColourBar(QPainter& p, const QRectF& bar, const Scene& sc, const SceneStyle& st) {
