@@ -41,6 +41,12 @@ std::string storedPath(const std::string& path, const std::string& base_dir) {
     return rel.generic_string();
 }
 
+std::string absolutePath(const std::string& path) {
+    std::error_code ec;
+    const fs::path abs = fs::absolute(fs::path(path), ec).lexically_normal();
+    return ec ? path : abs.generic_string();
+}
+
 json measurementJson(const Measurement& m) {
     json j = json::object();
     j["id"] = m.id;
@@ -273,6 +279,7 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
         const CaseCapture& c = doc.captures[i];
         json cj = json::object();
         cj["path"] = storedPath(c.path, base_dir);
+        if (!base_dir.empty()) cj["path_absolute"] = absolutePath(c.path);
         cj["sha256"] = c.sha256;
         if (c.recipe_json.empty()) {
             cj["recipe"] = nullptr;
@@ -336,6 +343,10 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
             CaseCapture c;
             c.path = resolvedPath(r.text(cj, p, "path", true), base_dir);
             if (c.path.empty()) r.fail(Reader::key(p, "path"), "must not be empty");
+            // The case file moved without its captures: fall back to where they were at save time.
+            const std::string was = r.text(cj, p, "path_absolute");
+            std::error_code ec;
+            if (!was.empty() && !fs::exists(c.path, ec) && fs::exists(was, ec)) c.path = was;
             c.sha256 = r.text(cj, p, "sha256", true);
             if (c.sha256.size() != 64 || c.sha256.find_first_not_of("0123456789abcdef") != std::string::npos)
                 r.fail(Reader::key(p, "sha256"), "must be 64 lowercase hexadecimal digits");

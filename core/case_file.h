@@ -48,9 +48,11 @@ struct CaseDocument {
 };
 
 /// JSON text of the case. Capture paths are written relative to `base_dir` when they lie
-/// under it (or can be reached with "../"); `base_dir` empty = paths written as they are.
+/// under it (or can be reached with "../"), with the absolute path beside them as a fallback
+/// ("path_absolute"); `base_dir` empty = paths written as they are.
 std::string caseToJson(const CaseDocument& doc, const std::string& base_dir = "");
-/// Parses and checks a case. Relative capture paths are resolved against `base_dir`.
+/// Parses and checks a case. Relative capture paths are resolved against `base_dir`; when that
+/// file does not exist but the recorded absolute path does, the absolute path is used.
 /// Throws InputError naming `source` and the JSON key (e.g. "findings[2].interpretation")
 /// for bad JSON, a missing/ill-typed key, an unknown enum name or an unknown version.
 CaseDocument caseFromJson(const std::string& text, const std::string& source,

@@ -137,7 +137,9 @@ TEST(case_file_test, capture_paths_are_stored_relative_to_the_case) {
     saveCase(file.string(), d);
     const std::string text = readFile(file);
     EXPECT_NE(text.find("\"path\": \"data/weld-synthetic.h5\""), std::string::npos) << text;
-    EXPECT_EQ(text.find(t.path().string()), std::string::npos);
+    // The absolute path at save time is kept beside it, as a fallback when the case file moves alone.
+    EXPECT_NE(text.find("\"path_absolute\": \"" + (t.path() / "data" / "weld-synthetic.h5").generic_string() + "\""),
+              std::string::npos) << text;
     // A path outside the case folder is reached with "../".
     EXPECT_NE(caseToJson(d, (t.path() / "cases").string()).find("\"../data/weld-synthetic.h5\""), std::string::npos);
 }
@@ -152,6 +154,18 @@ TEST(case_file_test, moving_the_whole_folder_keeps_captures_found) {
     EXPECT_EQ(fs::path(back.captures[0].path), b / "data" / "weld-synthetic.h5");
     EXPECT_EQ(checkCapture(back.captures[0]), CaptureStatus::Ok);
     EXPECT_EQ(checkCapture(back.captures[1]), CaptureStatus::Ok);
+}
+
+TEST(case_file_test, moving_the_case_file_alone_keeps_captures_found) {
+    TempDir t;
+    const CaseDocument d = fullCase(t.path() / "work");
+    saveCase((t.path() / "work" / "w12.umbracase").string(), d);
+    fs::create_directories(t.path() / "archive" / "2026");
+    const fs::path moved = t.path() / "archive" / "2026" / "w12.umbracase";
+    fs::rename(t.path() / "work" / "w12.umbracase", moved);
+    const CaseDocument back = loadCase(moved.string());
+    EXPECT_EQ(fs::path(back.captures[0].path), t.path() / "work" / "data" / "weld-synthetic.h5");
+    EXPECT_EQ(checkCapture(back.captures[0]), CaptureStatus::Ok);
 }
 
 TEST(case_file_test, moved_capture_is_missing_and_can_be_relocated) {
