@@ -233,6 +233,16 @@ TEST(case_file_test, failed_save_leaves_the_old_file_intact) {
     EXPECT_FALSE(fs::exists(file.string() + ".saving"));  // no temporary file left behind
 }
 
+TEST(case_file_test, failed_rename_removes_the_temporary_file) {
+    TempDir t;
+    // The target is a non-empty folder: writing the temporary file works, renaming over it fails.
+    const fs::path target = t.path() / "occupied.umbracase";
+    writeFile(target / "keep.txt", "still here");
+    EXPECT_THROW(saveCase(target.string(), fullCase(t.path())), InputError);
+    EXPECT_EQ(readFile(target / "keep.txt"), "still here");
+    EXPECT_FALSE(fs::exists(target.string() + ".saving"));
+}
+
 TEST(case_file_test, read_only_folder_save_fails_cleanly) {
     if (::geteuid() == 0) GTEST_SKIP() << "root ignores folder permissions";
     TempDir t;
