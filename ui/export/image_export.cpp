@@ -16,7 +16,12 @@ namespace umbra::ui {
 QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, int width_px) {
     const Scene scene = view.scene();
     const ViewTransform& on_screen = view.transform();
-    const double k = std::max(0.25, static_cast<double>(width_px) / std::max(1, view.width()));
+    // Scale so that the visible image part plus margins is about width_px wide.
+    const ViewTransform& vt0 = view.transform();
+    QRectF vis0 = QRectF(vt0.toMm(vt0.viewport().topLeft()), vt0.toMm(vt0.viewport().bottomRight())).normalized();
+    if (!scene.extent_mm.isEmpty() && vis0.intersects(scene.extent_mm)) vis0 = vis0.intersected(scene.extent_mm);
+    const double vis_px = std::max(1.0, vis0.width() * vt0.pixelsPerMm());
+    const double k = std::max(0.25, static_cast<double>(width_px) / (vis_px + 58 + 84));
 
     SceneStyle style;
     style.scale = k;
@@ -39,14 +44,23 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
     if (ctl.hasCapture() && ctl.header().isSynthetic()) style.caption << QStringLiteral("Synthetic demonstration data");
 
+    // The part of the image visible on screen (empty margins around the image are left out).
     const QRectF screen_area = on_screen.viewport();
+    QRectF visible = QRectF(on_screen.toMm(screen_area.topLeft()), on_screen.toMm(screen_area.bottomRight())).normalized();
+    if (!scene.extent_mm.isEmpty()) visible = visible.intersected(scene.extent_mm);
+    if (visible.isEmpty()) visible = QRectF(on_screen.toMm(screen_area.topLeft()), on_screen.toMm(screen_area.bottomRight()));
+    const double ppm = on_screen.pixelsPerMm() * k;  // export pixels per mm
     const QMarginsF m = sceneMargins(style, static_cast<int>(style.caption.size()));
-    const QSizeF area(screen_area.width() * k, screen_area.height() * k);
+    const QSizeF area(visible.width() * ppm, visible.height() * ppm);
     const QSize whole(static_cast<int>(area.width() + m.left() + m.right()),
                       static_cast<int>(area.height() + m.top() + m.bottom()));
     QImage out(whole, QImage::Format_RGB32);
     ViewTransform vt = on_screen;
     vt.setViewport(QRectF(QPointF(m.left(), m.top()), area));
+    const QRectF ext = vt.extentMm();
+    const double fit = std::min(area.width() / ext.width(), area.height() / ext.height());
+    vt.setZoom(ppm / fit);
+    vt.setCentreMm(visible.center());
     QPainter p(&out);
     paintScene(p, QRectF(QPointF(0, 0), QSizeF(whole)), vt, scene, style);
     p.end();
