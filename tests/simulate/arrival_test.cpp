@@ -131,3 +131,38 @@ TEST(arrival_test, start_time_shifts_sample_zero) {
     EXPECT_NEAR(arrival(trace(cap, 0, 0, 0), cap.header.samples, expected), expected, 0.1);
     EXPECT_DOUBLE_EQ(cap.header.receive.start_time_s[0], 1.5e-6);
 }
+
+// Plane wave on the back wall (image of the plane wave across z = T): (2T cos a + x_r sin a)/c;
+// and on a side-drilled hole: min over the circle of (z cos a + x sin a) + |P - receiver|.
+TEST(arrival_test, plane_wave_back_wall_and_hole_follow_the_same_delay_convention) {
+    auto j = baseScene();
+    j["array"]["elements"] = 32;
+    j["transmit"] = {{"kind", "plane_wave"}, {"angles_deg", {-8, 5}}};
+    j["medium"]["thickness_mm"] = 15;
+    j["reflectors"]["back_wall"] = {{"repeats", 0}};
+    j["reflectors"]["side_drilled_holes"] = {{{"centre_mm", {0.5, 7}}, {"diameter_mm", 2}}};
+    auto cap = run(j);
+    const auto ex = elementX(32, 0.6e-3);
+    const double angles[2] = {-8, 5}, T = 15e-3, cx = 0.5e-3, cz = 7e-3, a = 1e-3;
+    size_t checked = 0;
+    for (size_t t = 0; t < 2; ++t) {
+        const double al = angles[t] * M_PI / 180;
+        for (size_t r = 0; r < 32; r += 5) {
+            // Only receivers the reflected plane wave reaches: its ray left the array at
+            // x_r - 2T tan(a), which must lie inside the aperture (with a few wavelengths' margin).
+            if (std::abs(ex[r] - 2 * T * std::tan(al)) > 9.6e-3 - 3 * 1.184e-3) continue;
+            ++checked;
+            const double wall = (2 * T * std::cos(al) + ex[r] * std::sin(al)) / kC * kFs;
+            EXPECT_NEAR(arrival(trace(cap, 0, t, r), cap.header.samples, wall), wall, 0.1) << "wall, angle " << angles[t];
+            double best = 1e9;
+            for (int k = 0; k < 200000; ++k) {
+                const double phi = 2 * M_PI * k / 200000.0;
+                const double x = cx + a * std::cos(phi), z = cz + a * std::sin(phi);
+                best = std::min(best, z * std::cos(al) + x * std::sin(al) + std::hypot(x - ex[r], z));
+            }
+            const double hole = best / kC * kFs;
+            EXPECT_NEAR(arrival(trace(cap, 0, t, r), cap.header.samples, hole), hole, 0.1) << "hole, angle " << angles[t];
+        }
+    }
+    EXPECT_GE(checked, 6u);
+}
