@@ -17,13 +17,14 @@ core::StageSpec analyticSpec() {
 AnalyticSignal::AnalyticSignal(size_t n) : n_(n) {
     const size_t m = n ? n : 1;
     rin_ = fftwf_alloc_real(m);
+    rout_ = fftwf_alloc_real(m);
     auto* sp = fftwf_alloc_complex(m / 2 + 1);
-    auto* full = fftwf_alloc_complex(m);
+    auto* wk = fftwf_alloc_complex(m / 2 + 1);
     spec_ = sp;
-    full_ = full;
+    work_ = wk;
     std::lock_guard<std::mutex> lk(detail::fftwPlannerMutex());
     fwd_ = fftwf_plan_dft_r2c_1d(int(m), rin_, sp, FFTW_ESTIMATE);
-    bwd_ = fftwf_plan_dft_1d(int(m), full, full, FFTW_BACKWARD, FFTW_ESTIMATE);
+    bwd_ = fftwf_plan_dft_c2r_1d(int(m), wk, rout_, FFTW_ESTIMATE);
 }
 
 AnalyticSignal::~AnalyticSignal() {
@@ -33,30 +34,50 @@ AnalyticSignal::~AnalyticSignal() {
         fftwf_destroy_plan(static_cast<fftwf_plan>(bwd_));
     }
     fftwf_free(rin_);
+    fftwf_free(rout_);
     fftwf_free(spec_);
-    fftwf_free(full_);
+    fftwf_free(work_);
 }
 
+// Analytic signal z = IFFT(h X) with h[0] = 1, h[k] = 2 for 0 < k < n/2, h[n/2] = 1 (even n),
+// 0 above: its real part is the (filtered) trace and its imaginary part the Hilbert transform,
+// IFFT(-j sign(k) X). Both come from half-length real inverse transforms (c2r), so no
+// full-length complex FFT and no zeroed half spectrum are needed.
 void AnalyticSignal::run(const float* in, float* out, const float* weights) {
     const size_t n = n_;
     if (n == 0) return;
     auto* sp = static_cast<fftwf_complex*>(spec_);
-    auto* full = static_cast<fftwf_complex*>(full_);
+    auto* wk = static_cast<fftwf_complex*>(work_);
+    const size_t nb = n / 2 + 1;
+    const bool even = (n % 2) == 0;
     std::memcpy(rin_, in, n * sizeof(float));
     fftwf_execute_dft_r2c(static_cast<fftwf_plan>(fwd_), rin_, sp);
-    // h[0] = 1, h[1..ceil(n/2)-1] = 2, h[n/2] = 1 for even n, rest 0; scaled by 1/n for the inverse.
     const float inv = 1.0f / float(n);
-    const size_t half = n / 2;
-    const bool even = (n % 2) == 0;
-    for (size_t k = 0; k <= half; ++k) {
-        float h = (k == 0 || (even && k == half)) ? inv : 2 * inv;
-        if (weights) h *= weights[k];
-        full[k][0] = sp[k][0] * h;
-        full[k][1] = sp[k][1] * h;
+    // Real part.
+    const float* re = in;
+    if (weights) {
+        for (size_t k = 0; k < nb; ++k) {
+            sp[k][0] *= weights[k];
+            sp[k][1] *= weights[k];
+            wk[k][0] = sp[k][0] * inv;
+            wk[k][1] = sp[k][1] * inv;
+        }
+        fftwf_execute_dft_c2r(static_cast<fftwf_plan>(bwd_), wk, rout_);
+        std::memcpy(rin_, rout_, n * sizeof(float));
+        re = rin_;
     }
-    std::memset(full + half + 1, 0, (n - half - 1) * sizeof(fftwf_complex));
-    fftwf_execute_dft(static_cast<fftwf_plan>(bwd_), full, full);
-    std::memcpy(out, full, n * 2 * sizeof(float));
+    // Imaginary part: -j X[k] = (im, -re) for 0 < k < n/2; zero at DC and Nyquist.
+    wk[0][0] = wk[0][1] = 0;
+    for (size_t k = 1; k < nb; ++k) {
+        wk[k][0] = sp[k][1] * inv;
+        wk[k][1] = -sp[k][0] * inv;
+    }
+    if (even) wk[nb - 1][0] = wk[nb - 1][1] = 0;
+    fftwf_execute_dft_c2r(static_cast<fftwf_plan>(bwd_), wk, rout_);
+    for (size_t k = 0; k < n; ++k) {
+        out[2 * k] = re[k];
+        out[2 * k + 1] = rout_[k];
+    }
 }
 
 std::vector<std::complex<float>> analyticSignal(const std::vector<float>& trace) {

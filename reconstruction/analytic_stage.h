@@ -29,11 +29,12 @@ public:
 
 private:
     size_t n_;
-    float* rin_;
-    void* spec_;  // fftwf_complex[n/2+1]
-    void* full_;  // fftwf_complex[n]
-    void* fwd_;   // fftwf_plan
-    void* bwd_;
+    float* rin_;   // [n] input copy (aligned)
+    float* rout_;  // [n] inverse output
+    void* spec_;   // fftwf_complex[n/2+1], spectrum of the input
+    void* work_;   // fftwf_complex[n/2+1], spectrum to invert
+    void* fwd_;    // fftwf_plan r2c
+    void* bwd_;    // fftwf_plan c2r
 };
 
 /// Pure function: the analytic signal of one real trace (same length).

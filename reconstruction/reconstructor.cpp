@@ -88,8 +88,7 @@ struct Reconstructor::Impl {
     detail::DasKernels kernels = detail::bestKernels();
     enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
     bool full_aperture = false;
-    std::vector<float> window_lut;  // window at |u| = i / (kLut - 1), i < kLut, for Hann / Tukey
-    static constexpr size_t kLut = 4097;
+
 
     struct Worker {
         std::unique_ptr<AnalyticSignal> analytic;
@@ -166,8 +165,7 @@ struct Reconstructor::Impl {
         acc_pixels = off;
         apod = das.apodization == "rectangular" ? Apod::Rect : das.apodization == "tukey" ? Apod::Tukey : Apod::Hann;
         full_aperture = das.aperture == "full";
-        window_lut.resize(kLut);
-        for (size_t i = 0; i < kLut; ++i) window_lut[i] = apodizationWeight(das.apodization, double(i) / double(kLut - 1), das.tukey_alpha);
+
 
         const size_t per_tx = nrx * stride * 2 * sizeof(float) + nrx * ns * sizeof(float);
         block_tx = std::clamp<size_t>(kBlockBudgetBytes / std::max<size_t>(per_tx, 1), 1, ntx);
@@ -201,30 +199,53 @@ struct Reconstructor::Impl {
         }
     }
 
-    // Window at normalised position |u| (linear interpolation in a table; 0 outside [-1, 1]).
-    float window(float u) const {
-        const float a = std::fabs(u);
-        if (a > 1.0f) return 0.0f;
-        if (apod == Apod::Rect) return 1.0f;
-        const float pos = a * float(kLut - 1);
-        const size_t i = std::min(size_t(pos), kLut - 2);
-        const float f = pos - float(i);
-        return window_lut[i] + f * (window_lut[i + 1] - window_lut[i]);
+    // cos(x) for x in [0, pi/2] by its Taylor series to x^10 (error < 5e-7); inline and
+    // branch-free so the weight loops vectorise.
+    static inline float cosQuarter(float x) {
+        const float x2 = x * x;
+        return 1 + x2 * (-1.0f / 2 + x2 * (1.0f / 24 + x2 * (-1.0f / 720 + x2 * (1.0f / 40320 + x2 * (-1.0f / 3628800)))));
+    }
+    // Window at |u| = a >= 0 (0 outside [0, 1]): Hann cos^2(pi a / 2); Tukey flat to 1 - alpha then
+    // a Hann taper; rectangular 1.
+    static inline float windowAt(float a, int kind, float alpha) {
+        float t = kind == 1 ? a : (alpha > 0 ? (a - (1 - alpha)) / alpha : 0.0f);  // taper coordinate in [0, 1]
+        t = std::clamp(t, 0.0f, 1.0f);
+        const float c = cosQuarter(1.5707963f * t);
+        const float w = kind == 0 ? 1.0f : c * c;
+        return a > 1.0f ? 0.0f : w;
     }
 
     // Aperture weights of the element at xe for n pixels (x[p], z[p]).
     void apertureWeights(double xe, const float* x, const float* z, size_t n, double pitch, double xc, double half_len, float* w) const {
+        const int kind = apod == Apod::Rect ? 0 : apod == Apod::Hann ? 1 : 2;
+        const float alpha = float(das.tukey_alpha);
         if (full_aperture) {
-            const float v = apod == Apod::Rect ? 1.0f : window(float((xe - xc) / std::max(half_len, 1e-9)));
+            const float v = windowAt(float(std::fabs(xe - xc) / std::max(half_len, 1e-9)), kind, alpha);
             std::fill(w, w + n, v);
             return;
         }
         const float k = float(1 / (2 * das.f_number)), fp = float(pitch), fxe = float(xe), ip = float(1 / pitch);
-        for (size_t p = 0; p < n; ++p) {
-            const float half = std::max(std::max(z[p], 0.0f) * k, fp);
-            const float d = std::fabs(fxe - x[p]);
+        if (kind == 0) {
             // Rectangular: the edge element weighted by the part of its pitch inside (no jumps with depth).
-            w[p] = apod == Apod::Rect ? std::clamp((half - d) * ip + 0.5f, 0.0f, 1.0f) : window(d / half);
+            for (size_t p = 0; p < n; ++p) {
+                const float half = std::max(std::max(z[p], 0.0f) * k, fp);
+                w[p] = std::clamp((half - std::fabs(fxe - x[p])) * ip + 0.5f, 0.0f, 1.0f);
+            }
+            return;
+        }
+        // Hann (alpha = 1 taper over the whole half aperture) or Tukey; written without calls
+        // or branches so the loop vectorises.
+        const float flat = kind == 1 ? 0.0f : 1 - alpha, inv_taper = kind == 1 ? 1.0f : (alpha > 0 ? 1 / alpha : 0.0f);
+        for (size_t p = 0; p < n; ++p) {
+            const float zp = z[p] > 0.0f ? z[p] : 0.0f;
+            float half = zp * k;
+            half = half > fp ? half : fp;
+            const float a = std::fabs(fxe - x[p]) / half;
+            float t = (a - flat) * inv_taper;
+            t = t < 0.0f ? 0.0f : t;
+            t = t > 1.0f ? 1.0f : t;
+            const float c = cosQuarter(1.5707963f * t);
+            w[p] = a > 1.0f ? 0.0f : c * c;
         }
     }
 
@@ -255,9 +276,9 @@ struct Reconstructor::Impl {
             model->pointTime(pos, W.x.data(), W.z.data(), n, tof);
             for (size_t p = 0; p < n; ++p) tof[p] *= ffs;
             apertureWeights(pos[0], W.x.data(), W.z.data(), n, pitch, xc, half_len, w);
-            bool any = false;
-            for (size_t p = 0; p < n; ++p) any = any || w[p] > 0;
-            W.any[s] = any;
+            int active = 0;
+            for (size_t p = 0; p < n; ++p) active += w[p] > 0.0f ? 1 : 0;
+            W.any[s] = active > 0;
         }
         float* ac = acc.data() + 2 * T.offset;
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
