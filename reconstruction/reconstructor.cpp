@@ -17,6 +17,7 @@
 #include "reconstruction/bandpass_stage.h"
 #include "reconstruction/das_stage.h"
 #include "reconstruction/delay_model.h"
+#include "reconstruction/detail/big_buffer.h"
 #include "reconstruction/detail/thread_pool.h"
 #include "reconstruction/envelope_stage.h"
 #include "reconstruction/grid_stage.h"
@@ -80,8 +81,8 @@ struct Reconstructor::Impl {
     size_t acc_pixels = 0;  // pixels in all (padded) tiles
 
     // Per-frame state.
-    std::vector<float> raw;  // [block_tx][nrx][ns]
-    std::unique_ptr<float[]> iq_buf;  // [block_tx][nrx][stride][2]; guards zeroed once, data written per block
+    detail::BigBuffer raw_buf;  // [block_tx][nrx][ns]
+    detail::BigBuffer iq_buf;  // [block_tx][nrx][stride][2]; guards zeroed once, data written per block
     size_t iq_size = 0;
     float* iqData() const { return iq_buf.get(); }
     std::vector<float> acc, acc_s2, acc_n;  // tile-major; acc interleaved complex
@@ -348,10 +349,11 @@ struct Reconstructor::Impl {
             acc_n.assign(acc_pixels, 0.0f);
         }
         const size_t bsz = std::min(block_tx, ntx);
-        raw.resize(bsz * nrx * ns);
+        if (raw_buf.size() != bsz * nrx * ns) raw_buf.reset(bsz * nrx * ns);
+        float* raw = raw_buf.get();
         if (iq_size != bsz * nrx * stride * 2) {
             iq_size = bsz * nrx * stride * 2;
-            iq_buf.reset(new float[iq_size]);  // not value-initialised: only the guards need zeros
+            iq_buf.reset(iq_size);  // not value-initialised: only the guards need zeros
             for (size_t tr = 0; tr < bsz * nrx; ++tr) {
                 float* p = iq_buf.get() + tr * stride * 2;
                 std::fill(p, p + 2 * detail::kTracePad, 0.0f);
@@ -372,7 +374,7 @@ struct Reconstructor::Impl {
         for (size_t b0 = 0; b0 < ntx; b0 += bsz) {
             const size_t b1 = std::min(ntx, b0 + bsz);
             auto t0 = Clock::now();
-            for (size_t t = b0; t < b1; ++t) cap.readBlock(frame, t, raw.data() + (t - b0) * nrx * ns);
+            for (size_t t = b0; t < b1; ++t) cap.readBlock(frame, t, raw + (t - b0) * nrx * ns);
             t_read += since(t0);
             if (poll(0, 0)) break;
 
@@ -386,7 +388,7 @@ struct Reconstructor::Impl {
                 jobs.size(),
                 [&](int w, size_t j) {
                     const auto [tl, r] = jobs[j];
-                    workers[size_t(w)].analytic->run(raw.data() + (tl * nrx + r) * ns,
+                    workers[size_t(w)].analytic->run(raw + (tl * nrx + r) * ns,
                                                      iqData() + ((tl * nrx + r) * stride + detail::kTracePad) * 2, bw);
                 },
                 [&](size_t) { return poll(0, 0); });

@@ -161,13 +161,13 @@ int cmdReconstruct(const Argv& argv) {
         stack.z_m = grid.zAxis();
         stack.frames = frames.size();
         stack.recipe_json = recipe.toJson();
-        stack.capture_sha256 = core::fileSha256(path);
         stack.envelope.reserve(frames.size() * grid.nx() * grid.nz());
         std::vector<std::pair<std::string, double>> sums;
         double terms = 0, total = 0;
         const std::string title = (h.title.empty() ? path : h.title) + (h.isSynthetic() && h.title.find("synthetic") == std::string::npos ? " - synthetic demonstration data" : "");
         for (fi = 0; fi < frames.size(); ++fi) {
             core::Frame f = rec.run(frames[fi], prog);
+            if (stack.capture_sha256.empty()) stack.capture_sha256 = f.capture_sha256.empty() ? core::fileSha256(path) : f.capture_sha256;
             core::Frame g = recon::applyTgc(f, h, recipe);
             stack.envelope.insert(stack.envelope.end(), g.envelope.begin(), g.envelope.end());
             const auto& t = rec.lastTimings();
