@@ -103,7 +103,7 @@ void CaseController::openCapture(const QString& path) {
     emit caseChanged();
 }
 
-void CaseController::addCapture(const QString& path) {
+void CaseController::addCapture(const QString& path, bool activate) {
     core::CaptureReader probe(path.toStdString());  // throws InputError
     storeActiveState();
     core::CaseCapture cc;
@@ -111,7 +111,8 @@ void CaseController::addCapture(const QString& path) {
     cc.sha256 = core::fileSha256(path.toStdString());
     doc_.captures.push_back(cc);
     extra_dirty_ = true;
-    setActiveCapture(doc_.captures.size() - 1);
+    if (activate) setActiveCapture(doc_.captures.size() - 1);
+    else emit caseChanged();  // the list of captures changed
     emit dirtyChanged(true);
 }
 
@@ -249,12 +250,14 @@ void CaseController::setTitle(const QString& t) {
 }
 
 void CaseController::setCaseText(const core::CaseDocument& t) {
+    const bool retitled = doc_.title != t.title;
     doc_.title = t.title;
     doc_.background = t.background;
     doc_.pertinent_negatives = t.pertinent_negatives;
     doc_.prior_comparison = t.prior_comparison;
     markDirty();
-    emit caseChanged();
+    // Only a new title changes what other widgets show; the editor that sent the texts has them.
+    if (retitled) emit caseChanged();
 }
 
 core::CaseCapture& CaseController::active() { return doc_.captures.at(doc_.active_capture); }
@@ -287,7 +290,6 @@ bool CaseController::relocateCapture(const QString& path, bool accept_changed, Q
         return false;
     }
     markDirty();
-    const auto keep_measurements = c.measurements;
     openActiveCapture();
     return true;
 }

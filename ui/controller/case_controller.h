@@ -35,8 +35,8 @@ public:
     void newCase();
     /// Starts a new case on the capture at `path`. Throws core::InputError naming the file.
     void openCapture(const QString& path);
-    /// Adds a capture to the current case and makes it active. Throws core::InputError.
-    void addCapture(const QString& path);
+    /// Adds a capture to the current case (and makes it active when `activate`). Throws core::InputError.
+    void addCapture(const QString& path, bool activate = true);
     /// Opens a case file (or its autosave when `from_autosave`: the case keeps `path` as its
     /// name and is marked modified). Throws core::InputError. A missing or changed capture does
     /// not throw: captureProblem() says what is wrong and the measurements and findings stay.

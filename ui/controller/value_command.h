@@ -64,10 +64,18 @@ class RelabelMeasurementCommand : public ValueCommand<MeasurementList> {
 public:
     using ValueCommand::ValueCommand;
 };
-/// A finding was added, edited or removed.
+/// A finding was added, edited or removed. Consecutive edits with the same name (typing in
+/// one field) merge into one undo entry.
 class FindingEditCommand : public ValueCommand<FindingList> {
 public:
     using ValueCommand::ValueCommand;
+    int id() const override { return 0x46494e44; }
+    bool mergeWith(const QUndoCommand* other) override {
+        if (other->id() != id() || other->text() != text() || text().startsWith("Add") || text().startsWith("Remove"))
+            return false;
+        after_ = static_cast<const FindingEditCommand*>(other)->after();
+        return true;
+    }
 };
 
 }  // namespace umbra::ui

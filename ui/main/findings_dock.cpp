@@ -28,7 +28,11 @@ FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
     };
     QObject::connect(ctl, &CaseController::caseChanged, pane, refreshDocument);
     QObject::connect(ctl, &CaseController::captureChanged, pane, refreshDocument);
-    QObject::connect(ctl, &CaseController::findingsChanged, pane, [ctl, pane] { pane->setFindings(ctl->findings()); });
+    // While the user types in the pane, the controller's findings already equal the pane's:
+    // leave the editors alone then (no cursor jumps); undo/redo and other sources refresh it.
+    QObject::connect(ctl, &CaseController::findingsChanged, pane, [ctl, pane] {
+        if (!(pane->findings() == ctl->findings())) pane->setFindings(ctl->findings());
+    });
     QObject::connect(ctl, &CaseController::imageChanged, pane, [ctl, pane] { pane->setTechnique(ctl->techniqueText()); });
     QObject::connect(ctl, &CaseController::recipeChanged, pane, [ctl, pane] { pane->setTechnique(ctl->techniqueText()); });
 

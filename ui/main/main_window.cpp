@@ -56,7 +56,7 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     buildActions();
     buildStatusBar();
 
-    connect(ctl_, &CaseController::caseChanged, this, &MainWindow::updateTitle);
+    connect(ctl_, &CaseController::caseChanged, this, &MainWindow::onCaptureChanged);  // title and capture list
     connect(ctl_, &CaseController::dirtyChanged, this, &MainWindow::updateTitle);
     connect(ctl_, &CaseController::captureChanged, this, &MainWindow::onCaptureChanged);
     connect(ctl_, &CaseController::frameChanged, this, &MainWindow::updateFrameControls);
@@ -598,8 +598,7 @@ bool MainWindow::openDemo(const QString& dir) {
         ctl_->openCapture(weld);
         const QString phantom = dir + "/phantom_p2.h5";
         if (QFileInfo::exists(phantom)) {
-            ctl_->addCapture(phantom);
-            ctl_->setActiveCapture(0);
+            ctl_->addCapture(phantom, false);
         }
         core::CaseDocument t = ctl_->document();
         t.title = "Weld W-031, spool 14 (synthetic demo)";
