@@ -353,7 +353,12 @@ CaptureWriter::CaptureWriter(const std::string& path, const CaptureHeader& heade
     I.partial = path + ".partial";
     I.h = header;
     const auto& h = header;
-    I.file = Hid(H5Fcreate(I.partial.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT));
+    // File-format objects of HDF5 1.8 and later: object headers and other metadata carry
+    // checksums, so damage to them is detected when read instead of being interpreted
+    // (readable by HDF5 1.8 and later, h5py included).
+    Hid fapl(H5Pcreate(H5P_FILE_ACCESS));
+    H5Pset_libver_bounds(fapl.get(), H5F_LIBVER_V18, H5F_LIBVER_V18);
+    I.file = Hid(H5Fcreate(I.partial.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, fapl.get()));
     if (!I.file) throw InputError(path, "", "cannot create the file (directory missing or not writable?)");
     try {
         hid_t f = I.file.get();
