@@ -23,10 +23,7 @@ std::vector<Vec3> toVec3(const std::vector<double>& v) {
 }
 
 // HDF5 is not thread-safe in Debian's serial build: every call into it is serialised.
-std::mutex& h5Mutex() {
-    static std::mutex m;
-    return m;
-}
+std::mutex& h5Mutex() { return hdf5Mutex(); }  // shared with image files
 
 // A string from the file, safe to put into a one-line message: control and non-ASCII bytes
 // become '?', and it is cut to 60 characters.

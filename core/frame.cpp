@@ -32,6 +32,7 @@ Frame ImageStack::frame(size_t i) const {
 }
 
 void writeImageFile(const std::string& path, const ImageStack& img) {
+    std::lock_guard lock(hdf5Mutex());
     silenceHdf5();
     const std::string partial = path + ".partial";
     const size_t nx = img.x_m.size(), nz = img.z_m.size();
@@ -61,7 +62,11 @@ void writeImageFile(const std::string& path, const ImageStack& img) {
 }
 
 ImageStack readImageFile(const std::string& path) {
+    std::lock_guard lock(hdf5Mutex());
     silenceHdf5();
+    std::error_code ec;
+    if (!std::filesystem::exists(path, ec)) throw InputError(path, "", "file does not exist");
+    if (std::filesystem::is_directory(path, ec)) throw InputError(path, "", "is a directory, not an image file");
     if (H5Fis_hdf5(path.c_str()) <= 0) throw InputError(path, "", "is not an HDF5 file");
     Hid f(H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT));
     if (!f) throw InputError(path, "", "cannot be opened");
@@ -78,10 +83,20 @@ ImageStack readImageFile(const std::string& path) {
     if (!x) throw InputError(path, "/image/x_m", err);
     auto z = readDoubles(f.get(), "/image/z_m", 1, 1 << 20, dims, err);
     if (!z) throw InputError(path, "/image/z_m", err);
-    auto e = readFloats(f.get(), "/image/envelope", 3, size_t(1) << 31, dims, err);
+    // Shape checked against the axes and a size bound before anything is allocated.
+    constexpr size_t kMaxEnvelope = size_t(1) << 28;  // 1 GiB of float32
+    if (!exists(f.get(), "/image/envelope")) throw InputError(path, "/image/envelope", "is missing");
+    {
+        Hid ds(H5Dopen2(f.get(), "/image/envelope", H5P_DEFAULT));
+        if (!ds) throw InputError(path, "/image/envelope", "is not a dataset");
+        auto d = datasetDims(ds.get(), err);
+        if (!d) throw InputError(path, "/image/envelope", err);
+        if (d->size() != 3 || (*d)[1] != z->size() || (*d)[2] != x->size())
+            throw InputError(path, "/image/envelope", "shape does not match [N_frames, N_z, N_x] = [*, " +
+                                                          std::to_string(z->size()) + ", " + std::to_string(x->size()) + "]");
+    }
+    auto e = readFloats(f.get(), "/image/envelope", 3, kMaxEnvelope, dims, err);
     if (!e) throw InputError(path, "/image/envelope", err);
-    if (dims[1] != z->size() || dims[2] != x->size())
-        throw InputError(path, "/image/envelope", "shape does not match the axes");
     img.x_m = *x;
     img.z_m = *z;
     img.frames = dims[0];

@@ -21,6 +21,11 @@ void Hid::reset() {
     id_ = -1;
 }
 
+std::mutex& hdf5Mutex() {
+    static std::mutex m;
+    return m;
+}
+
 void silenceHdf5() {
     static std::once_flag once;
     std::call_once(once, [] { H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr); });

@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cstdint>
+#include <mutex>
 #include <optional>
 #include <string>
 #include <vector>
@@ -33,6 +34,10 @@ public:
 private:
     hid_t id_ = -1;
 };
+
+/// Debian's HDF5 is built without thread safety: every call into the library, from any file
+/// type (captures, image files, ...), must hold this one mutex.
+std::mutex& hdf5Mutex();
 
 /// Turns off HDF5's automatic error printing (once per process).
 void silenceHdf5();

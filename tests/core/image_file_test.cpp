@@ -8,6 +8,7 @@
 #include <fstream>
 
 #include "core/capture_file.h"
+#include "core/detail/h5.h"
 #include "core/error.h"
 #include "core/frame.h"
 #include "fixtures/known_capture.h"
@@ -88,6 +89,47 @@ TEST(ImageFile, ReaderRefusesOtherFilesNamingThem) {
     }
     EXPECT_THROW(readImageFile(d.file("missing.h5")), InputError);
     EXPECT_THROW(readImageFile(d.path.string()), InputError);
+}
+
+// Replaces /image/envelope by a chunked float32 dataset of the given shape whose chunks are
+// never written: the file stays tiny whatever the shape claims.
+void replaceEnvelope(const std::string& path, std::vector<hsize_t> dims) {
+    using namespace umbra::core::detail;
+    std::lock_guard lock(hdf5Mutex());
+    Hid f(H5Fopen(path.c_str(), H5F_ACC_RDWR, H5P_DEFAULT));
+    ASSERT_TRUE(f.valid());
+    ASSERT_GE(H5Ldelete(f.get(), "/image/envelope", H5P_DEFAULT), 0);
+    Hid sp(H5Screate_simple(int(dims.size()), dims.data(), nullptr));
+    Hid dcpl(H5Pcreate(H5P_DATASET_CREATE));
+    std::vector<hsize_t> chunk(dims.size(), 1);
+    chunk.back() = dims.back();
+    H5Pset_chunk(dcpl.get(), int(chunk.size()), chunk.data());
+    Hid ds(H5Dcreate2(f.get(), "/image/envelope", H5T_IEEE_F32LE, sp.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT));
+    ASSERT_TRUE(ds.valid());
+}
+
+std::string imageErrorOf(const std::string& path) {
+    try {
+        readImageFile(path);
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.file(), path);
+        return e.what();
+    }
+    return "";
+}
+
+TEST(ImageFile, ShapeAgainstAxesAndAbsurdSizesRefusedBeforeReading) {
+    TempDir d;
+    const std::string path = d.file("img.h5");
+    writeImageFile(path, sampleStack());
+    replaceEnvelope(path, {2, 4, 5});  // N_z should be 3
+    EXPECT_NE(imageErrorOf(path).find("/image/envelope: shape does not match"), std::string::npos) << imageErrorOf(path);
+    replaceEnvelope(path, {2, 3});
+    EXPECT_NE(imageErrorOf(path).find("/image/envelope"), std::string::npos);
+    // 2^31 frames of 3 x 5 pixels: 120 GiB claimed by a file of a few kB.
+    replaceEnvelope(path, {hsize_t(1) << 31, 3, 5});
+    EXPECT_LT(fs::file_size(path), 100000u);
+    EXPECT_NE(imageErrorOf(path).find("too large"), std::string::npos) << imageErrorOf(path);
 }
 
 }  // namespace
