@@ -18,6 +18,7 @@
 
 int main(int argc, char** argv) {
     QApplication app(argc, argv);
+    QApplication::setStyle("Fusion");  // the same calm look on every desktop
     QApplication::setApplicationName("Umbra");
     QApplication::setOrganizationName("Umbra");
     QApplication::setApplicationVersion("0.1.0");
@@ -91,7 +92,7 @@ int main(int argc, char** argv) {
     };
     // Measure when the worker is idle (the top view's background frames share the cores).
     auto idle = [ctl] {
-        const bool top_done = !ctl->isEncodedScan() || ctl->topViewFramesDone() >= ctl->frameCount();
+        const bool top_done = !ctl->topViewFits() || ctl->topViewFramesDone() >= ctl->frameCount();
         return ctl->hasImage() && !ctl->isBusy() && top_done;
     };
     if (opt.timings && ok && !screenshot) {

@@ -310,3 +310,25 @@ TEST(workstation_test, export_writes_png_at_the_chosen_width) {
     EXPECT_NEAR(img.width(), 1800, 3);  // visible image part plus axis and colour-bar margins
     EXPECT_GT(img.height(), 200);
 }
+
+// Two reconstruction edits in quick succession: the newer request supersedes the older one and
+// the frame finally shown was made with the newest recipe (the frame records its recipe).
+TEST(workstation_test, newer_beamforming_request_supersedes_older) {
+    const QString dir = ui::test::tempDir();
+    const QString cap = makeCapture(dir, "one.h5", 1);
+    MainWindow w(quiet());
+    auto* ctl = w.controller();
+    ASSERT_TRUE(openAndWait(w, cap));
+    const std::string bkey = beamformKey(ctl->recipe());
+    ASSERT_FALSE(bkey.empty());
+    const core::ParamSpec spec = ctl->recipe().spec(bkey);
+    const double v1 = std::min(spec.max, 1.5), v2 = std::min(spec.max, 2.5);
+    ctl->editRecipeValue(bkey, std::to_string(v1));
+    ctl->editRecipeValue(bkey, std::to_string(v2));
+    ASSERT_TRUE(waitUntil([&] { return !ctl->isBusy(); }));
+    ASSERT_TRUE(ctl->hasImage());
+    core::Recipe used = ctl->recipe();
+    used.mergeJson(ctl->envelope()->recipe_json, "frame recipe");
+    EXPECT_NEAR(used.number(bkey), v2, 1e-9);
+    EXPECT_LE(ctl->beamformRuns(), 3);  // the first run, at most the superseded one, the last
+}

@@ -365,10 +365,23 @@ void CaseController::setCurrentFrame(size_t f) {
     }
 }
 
+namespace {
+/// Frames kept in memory at most (bytes of linear envelopes); beyond it the farthest frames go
+/// and the top view is not computed.
+constexpr size_t kCacheBytes = size_t(1) << 30;
+size_t frameBytes(const core::Frame& f) { return f.envelope.size() * sizeof(float); }
+}  // namespace
+
+bool CaseController::topViewFits() const {
+    if (!isEncodedScan()) return false;
+    if (!envelope_) return true;  // not known yet; decided when the first frame is there
+    return frameBytes(*envelope_) * frameCount() <= kCacheBytes;
+}
+
 void CaseController::requestBeamform() {
     if (!reader_) return;
     setBusy(true);
-    const bool all = isEncodedScan();
+    const bool all = topViewFits();
     worker_->request(generation_, reader_->path(), recipe_, frame_, all, frameCount());
 }
 
@@ -388,6 +401,22 @@ void CaseController::onFrameReady(quint64 gen, qulonglong frame, FramePtr img, d
     if (gen != generation_ || !reader_) return;
     fidelity_db_ = fidelity;
     cache_[frame] = img;
+    // Keep the cache bounded: drop the frames farthest from the current one.
+    size_t bytes = 0;
+    for (const auto& [f, fr] : cache_) bytes += frameBytes(*fr);
+    while (bytes > kCacheBytes && cache_.size() > 1) {
+        auto far = cache_.begin();
+        auto dist = [this](size_t f) { return f > frame_ ? f - frame_ : frame_ - f; };
+        for (auto it = cache_.begin(); it != cache_.end(); ++it)
+            if (dist(it->first) > dist(far->first)) far = it;
+        if (far->first == frame_) break;
+        bytes -= frameBytes(*far->second);
+        cache_.erase(far);
+    }
+    if (isEncodedScan() && !topViewFits() && background) {
+        worker_->cancel();  // too large to keep every frame: no top view
+        emit statusMessage(tr("Top view off: %1 frames of this grid do not fit in memory").arg(frameCount()));
+    }
     if (frame == frame_) {
         if (!background) beamform_s_ = seconds;
         envelope_ = img;
@@ -395,7 +424,7 @@ void CaseController::onFrameReady(quint64 gen, qulonglong frame, FramePtr img, d
         emit statusMessage(tr("Beamformed frame %1 in %2 s").arg(frame + 1).arg(seconds, 0, 'f', 2));
         rerender();
     }
-    if (isEncodedScan()) rebuildTopView();
+    if (topViewFits()) rebuildTopView();
 }
 
 double CaseController::dynamicRangeDb() const {

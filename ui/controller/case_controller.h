@@ -112,6 +112,8 @@ public:
     /// are those whose frame is beamformed.
     const QImage& topViewImage() const { return top_image_; }
     size_t topViewFramesDone() const { return cache_.size(); }
+    /// True for an encoded scan whose frames all fit in the frame cache (1 GiB).
+    bool topViewFits() const;
     /// Depth gate of the top view, mm (near field and a known plate's back wall left out).
     std::pair<double, double> topViewGateMm() const { return top_gate_mm_; }
 

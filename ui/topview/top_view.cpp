@@ -45,6 +45,12 @@ void TopView::paintEvent(QPaintEvent*) {
                    tr("The top view needs an encoded scan (a capture with scan positions for more than one frame)."));
         return;
     }
+    if (!ctl_->topViewFits()) {
+        p.drawText(rect().adjusted(12, 12, -12, -12), Qt::AlignCenter | Qt::TextWordWrap,
+                   tr("The top view is off: every frame of this grid would not fit in memory. "
+                      "Choose a coarser pixel step or a smaller region in the recipe."));
+        return;
+    }
     const size_t n = ctl_->frameCount();
     p.drawText(QRectF(8, 2, width() - 16, 18), Qt::AlignLeft | Qt::AlignVCenter,
                tr("Peak over depth %1–%2 mm · %3 of %4 frames beamformed · click to pick a frame")
