@@ -7,9 +7,12 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <atomic>
 #include <filesystem>
+#include <thread>
 
 #include "core/capture_file.h"
+#include "core/frame.h"
 
 namespace fs = std::filesystem;
 using namespace umbra::core;
@@ -274,6 +277,43 @@ TEST(CaptureRoundTripOptional, FileShaMatchesTheBytes) {
     { FILE* f = std::fopen(path.c_str(), "wb"); std::fputs("abc", f); std::fclose(f); }
     EXPECT_EQ(fileSha256(path), "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
     EXPECT_THROW(fileSha256(dir.file("missing.bin")), InputError);
+}
+
+TEST(CaptureRoundTripOptional, ReadersInThreadsAndImageWritesDoNotInterfere) {
+    // HDF5 (Debian's serial build) is not thread-safe; the core serialises every call. Two
+    // readers in two threads and an image writer in a third must all see correct data.
+    TempDir dir;
+    const auto h = fullHeader(TransmitKind::PlaneWave, SampleType::Int16);
+    const std::string path = dir.file("shared.h5");
+    writeAll(path, h);
+    std::atomic<int> bad{0};
+    auto reader = [&] {
+        CaptureReader r(path);
+        std::vector<float> b(h.blockSize());
+        for (int rep = 0; rep < 50; ++rep)
+            for (size_t f = 0; f < h.frames; ++f)
+                for (size_t t = 0; t < h.transmits(); ++t) {
+                    r.readBlock(f, t, b.data());
+                    if (b[3 * h.samples + 9] != sampleValue(h, f, t, 3, 9)) ++bad;
+                }
+    };
+    auto imager = [&] {
+        ImageStack s;
+        s.x_m = {0.0, 1e-3};
+        s.z_m = {1e-3};
+        s.frames = 1;
+        s.envelope = {1.0f, 2.0f};
+        for (int i = 0; i < 20; ++i) {
+            const std::string p = dir.file("img" + std::to_string(i) + ".h5");
+            writeImageFile(p, s);
+            if (readImageFile(p).envelope != s.envelope) ++bad;
+        }
+    };
+    std::thread a(reader), b(reader), c(imager);
+    a.join();
+    b.join();
+    c.join();
+    EXPECT_EQ(bad.load(), 0);
 }
 
 }  // namespace
