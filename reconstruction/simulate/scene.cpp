@@ -465,6 +465,15 @@ Scene parseScene(const std::string& text, const std::string& source) {
     const double total = double(s.frames.count) * double(ntx) * double(s.array.elements) * double(s.sampling.samples) *
                          (s.output.sample_type == core::SampleType::Int16 ? 2.0 : 4.0);
     if (total > 64e9) throw core::InputError(source, "frames.count", "capture would be " + Obj::fmt(total / 1e9) + " GB (limit 64 GB)");
+    // The simulator holds one frame (all transmits) as float32 and per-transmit tables of every scatterer.
+    const double frame_bytes = double(ntx) * block_bytes;
+    if (frame_bytes > 4e9)
+        throw core::InputError(source, "sampling.samples", "one frame would need " + Obj::fmt(frame_bytes / 1e9) + " GB of memory (limit 4 GB)");
+    if (s.speckle.enabled) {
+        const double k = s.speckle.density_per_m2 * (s.speckle.x_max_m - s.speckle.x_min_m) * (s.speckle.z_max_m - s.speckle.z_min_m);
+        if (k * double(ntx) * 12.0 > 4e9)
+            throw core::InputError(source, "speckle.density_per_mm2", "scatterer tables for " + std::to_string(ntx) + " transmits would exceed 4 GB");
+    }
     return s;
 }
 

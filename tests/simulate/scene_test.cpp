@@ -103,6 +103,16 @@ TEST(scene_test, absurd_sizes_are_refused_before_allocating) {
     j = baseScene();
     j["speckle"] = {{"x_range_mm", {-50, 50}}, {"z_range_mm", {1, 100}}, {"density_per_mm2", 1000}};
     EXPECT_NE(errorOf(j).find("speckle.density_per_mm2"), std::string::npos);
+    j = baseScene();  // one frame of 4096 x 4096 x 100 000 samples: 6.7 TB
+    j["array"]["elements"] = 4096;
+    j["array"]["pitch_mm"] = 0.6;
+    j["sampling"]["samples"] = 100000;
+    EXPECT_NE(errorOf(j).find("sampling.samples"), std::string::npos);
+    j = baseScene();  // 1 000 000 scatterers x 1024 transmits of tables (12 GB)
+    j["array"]["elements"] = 1024;
+    j["sampling"]["samples"] = 100;
+    j["speckle"] = {{"x_range_mm", {-50, 50}}, {"z_range_mm", {1, 101}}, {"density_per_mm2", 100}};
+    EXPECT_NE(errorOf(j).find("speckle.density_per_mm2"), std::string::npos);
 }
 
 TEST(scene_test, malformed_json_names_the_file) {
