@@ -274,6 +274,8 @@ void MainWindow::buildActions() {
     tb->addAction(tr("Export"), this, &MainWindow::exportDialog)->setToolTip(tr("Export an annotated PNG (Ctrl+E)"));
     tb->addSeparator();
     for (QAction* t : tools_->actions()) tb->addAction(t);
+    tb->addAction(tr("Add finding"), this, &MainWindow::addFindingFromSelection)
+        ->setToolTip(tr("Add a finding from the selected measurement (Ctrl+F)"));
     tb->addSeparator();
     // Toolbar buttons with fixed text (the menu entries name the edit).
     QAction* tu = tb->addAction(tr("Undo"), ctl_->undoStack(), &QUndoStack::undo);

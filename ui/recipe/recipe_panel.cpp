@@ -78,6 +78,7 @@ void RecipePanel::build() {
     auto* scroll = new QScrollArea;
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
+    scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     auto* inner = new QWidget;
     auto* v = new QVBoxLayout(inner);
     v->setContentsMargins(6, 2, 6, 6);
