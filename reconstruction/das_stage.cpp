@@ -72,10 +72,10 @@ inline void lagrange4(float f, float& c0, float& c1, float& c2, float& c3) {
     c3 = fp1 * f * fm1 * (1.0f / 6);
 }
 
-void linearScalar(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
+void linearScalar(const float* __restrict ta, const float* __restrict tb, float off, const float* __restrict wt, const float* __restrict wr,
                   float k, const float* __restrict tr, float hi, size_t n, float* __restrict acc) {
     for (size_t p = 0; p < n; ++p) {
-        float q = base[p] + tof[p];
+        float q = (ta[p] + tb[p]) + off;
         q = q < 1.0f ? 1.0f : q;
         q = q > hi ? hi : q;
         const int i = int(q);
@@ -87,10 +87,10 @@ void linearScalar(const float* __restrict base, const float* __restrict tof, con
     }
 }
 
-void cubicScalar(const float* __restrict base, const float* __restrict tof, const float* __restrict wt, const float* __restrict wr,
+void cubicScalar(const float* __restrict ta, const float* __restrict tb, float off, const float* __restrict wt, const float* __restrict wr,
                  float k, const float* __restrict tr, float hi, size_t n, float* __restrict acc) {
     for (size_t p = 0; p < n; ++p) {
-        float q = base[p] + tof[p];
+        float q = (ta[p] + tb[p]) + off;
         q = q < 1.0f ? 1.0f : q;
         q = q > hi ? hi : q;
         const int i = int(q);
@@ -118,14 +118,14 @@ namespace {
 #define UMBRA_AVX512 __attribute__((target("avx512f,avx512dq,avx512vl,avx2,fma")))
 #define UMBRA_AVX2 __attribute__((target("avx2,fma")))
 
-UMBRA_AVX512 void linearAvx512(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
-                               size_t n, float* acc) {
-    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k);
+UMBRA_AVX512 void linearAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                               float hi, size_t n, float* acc) {
+    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k), voff = _mm256_set1_ps(off);
     const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
     const __m512d zero8 = _mm512_setzero_pd();
     const double* d0 = reinterpret_cast<const double*>(tr);
     for (size_t p = 0; p < n; p += 8) {
-        __m256 q = _mm256_add_ps(_mm256_loadu_ps(base + p), _mm256_loadu_ps(tof + p));
+        __m256 q = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta + p), _mm256_loadu_ps(tb + p)), voff);
         q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
         const __m256i i = _mm256_cvttps_epi32(q);
         const __m256 f = _mm256_sub_ps(q, _mm256_cvtepi32_ps(i));
@@ -139,15 +139,15 @@ UMBRA_AVX512 void linearAvx512(const float* base, const float* tof, const float*
     }
 }
 
-UMBRA_AVX512 void cubicAvx512(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
-                              size_t n, float* acc) {
-    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k);
+UMBRA_AVX512 void cubicAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                              float hi, size_t n, float* acc) {
+    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k), voff = _mm256_set1_ps(off);
     const __m256 two = _mm256_set1_ps(2.0f), half = _mm256_set1_ps(0.5f), sixth = _mm256_set1_ps(1.0f / 6);
     const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
     const __m512d zero8 = _mm512_setzero_pd();
     const double* d0 = reinterpret_cast<const double*>(tr);
     for (size_t p = 0; p < n; p += 8) {
-        __m256 q = _mm256_add_ps(_mm256_loadu_ps(base + p), _mm256_loadu_ps(tof + p));
+        __m256 q = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta + p), _mm256_loadu_ps(tb + p)), voff);
         q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
         const __m256i i = _mm256_cvttps_epi32(q);
         const __m256 f = _mm256_sub_ps(q, _mm256_cvtepi32_ps(i));
@@ -172,14 +172,14 @@ UMBRA_AVX512 void cubicAvx512(const float* base, const float* tof, const float* 
     }
 }
 
-UMBRA_AVX2 void linearAvx2(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
-                           size_t n, float* acc) {
-    const __m128 one = _mm_set1_ps(1.0f), vhi = _mm_set1_ps(hi), vk = _mm_set1_ps(k);
+UMBRA_AVX2 void linearAvx2(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                           float hi, size_t n, float* acc) {
+    const __m128 one = _mm_set1_ps(1.0f), vhi = _mm_set1_ps(hi), vk = _mm_set1_ps(k), voff = _mm_set1_ps(off);
     const __m256i dup = _mm256_set_epi32(3, 3, 2, 2, 1, 1, 0, 0);
     const __m256d zero4 = _mm256_setzero_pd(), ones4 = _mm256_castsi256_pd(_mm256_set1_epi64x(-1));
     const double* d0 = reinterpret_cast<const double*>(tr);
     for (size_t p = 0; p < n; p += 4) {
-        __m128 q = _mm_add_ps(_mm_loadu_ps(base + p), _mm_loadu_ps(tof + p));
+        __m128 q = _mm_add_ps(_mm_add_ps(_mm_loadu_ps(ta + p), _mm_loadu_ps(tb + p)), voff);
         q = _mm_min_ps(_mm_max_ps(q, one), vhi);
         const __m128i i = _mm_cvttps_epi32(q);
         const __m128 f = _mm_sub_ps(q, _mm_cvtepi32_ps(i));
@@ -212,10 +212,10 @@ DasKernels bestKernels() { return scalarKernels(); }
 
 DasKernels scalarKernels() { return DasKernels{linearScalar, cubicScalar, "scalar"}; }
 
-void dasCoherence(bool cubic, const float* base, const float* tof, const float* wt, const float* wr, float k, float mult,
+void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, float mult,
                   const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt) {
     for (size_t p = 0; p < n; ++p) {
-        float q = base[p] + tof[p];
+        float q = (ta[p] + tb[p]) + off;
         q = q < 1.0f ? 1.0f : q;
         q = q > hi ? hi : q;
         const int i = int(q);

@@ -43,12 +43,13 @@ constexpr size_t traceStride(size_t n) { return n + kTracePad + 3; }
 /// Kernels process pixels in groups of this many (tiles are padded to a multiple).
 constexpr size_t kLanes = 16;
 
-/// Hot loop signature. For pixel p < n (n a multiple of kLanes): position q = base[p] + tof[p]
-/// (in stored samples, guards included) clamped to [1, hi]; value = interpolation of the
+/// Hot loop signature. For pixel p < n (n a multiple of kLanes): position
+/// q = (ta[p] + tb[p]) + off (transmit and receive delays in samples, plus the offset of
+/// the trace start and the guards) clamped to [1, hi]; value = interpolation of the
 /// interleaved complex trace `tr` at q; weight (k wt[p]) wr[p]; accumulated into the
 /// interleaved complex accumulator acc[2p], acc[2p+1].
-using DasKernel = void (*)(const float* base, const float* tof, const float* wt, const float* wr, float k, const float* tr, float hi,
-                           size_t n, float* acc);
+using DasKernel = void (*)(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                           float hi, size_t n, float* acc);
 
 struct DasKernels {
     DasKernel linear, cubic;
@@ -62,7 +63,7 @@ DasKernels bestKernels();
 
 /// As the kernels, and also accumulates |weighted sample|^2 into s2 and the number of
 /// contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.
-void dasCoherence(bool cubic, const float* base, const float* tof, const float* wt, const float* wr, float k, float mult,
+void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, float mult,
                   const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt);
 }  // namespace detail
 

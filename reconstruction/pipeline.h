@@ -55,6 +55,8 @@ struct Timings {
     std::vector<std::pair<std::string, double>> stage_seconds;  ///< in pipeline order
     double total_seconds = 0;
     double effective_terms = 0;  ///< pixels x transmits x receives summed
+    double executed_terms = 0;   ///< terms the kernels actually evaluated (after reciprocity, aperture and tile skipping, incl. tile padding)
+    /// effective_terms / delay-and-sum seconds.
     double termsPerSecond() const;
 };
 

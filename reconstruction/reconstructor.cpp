@@ -93,8 +93,12 @@ struct Reconstructor::Impl {
 
     struct Worker {
         std::unique_ptr<AnalyticSignal> analytic;
-        std::vector<float> x, z, tof, w, base, wt, ones;
+        std::vector<float> x, z, tof, w, txd, ones;
         std::vector<uint8_t> any;
+        std::vector<const float*> tx_delay, tx_weight;  // per transmit of the block
+        std::vector<float> tx_off, tx_scale;
+        std::vector<int32_t> tx_el;
+        double executed = 0;  // terms evaluated in this run
     };
     std::vector<Worker> workers;
 
@@ -181,8 +185,6 @@ struct Reconstructor::Impl {
             w.z.resize(tile_max);
             w.tof.resize(ne * tile_max);
             w.w.resize(ne * tile_max);
-            w.base.resize(tile_max);
-            w.wt.resize(tile_max);
             w.ones.assign(tile_max, 1.0f);
             w.any.resize(ne);
         }
@@ -285,47 +287,65 @@ struct Reconstructor::Impl {
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
         float* cn = das.coherence_factor ? acc_n.data() + T.offset : nullptr;
         const float hi = float(ns + detail::kTracePad);
+        // Transmit side of every event in the block: delay row (samples), weight row, offset.
+        const size_t nb = b1 - b0;
+        W.tx_delay.resize(nb);
+        W.tx_weight.resize(nb);
+        W.tx_off.resize(nb);
+        W.tx_scale.resize(nb);
+        W.tx_el.resize(nb);
+        if (h.transmit.kind != core::TransmitKind::SingleElement && W.txd.size() < nb * tile_max) W.txd.resize(nb * tile_max);
         for (size_t t = b0; t < b1; ++t) {
-            const float off = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs);
-            const float* wt = W.ones.data();
-            int32_t te = -1;
-            float kt = tx_weight[t];
+            const size_t l = t - b0;
+            W.tx_off[l] = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs);
+            W.tx_scale[l] = tx_weight[t];
+            W.tx_el[l] = -1;
             switch (h.transmit.kind) {
                 case core::TransmitKind::SingleElement: {
-                    te = h.transmit.source_element[t];
-                    const int s = slot_of_el[size_t(te)];
-                    if (!W.any[size_t(s)]) continue;
-                    const float* tof = W.tof.data() + size_t(s) * tile_max;
-                    for (size_t p = 0; p < n; ++p) W.base[p] = tof[p] + off;
-                    wt = W.w.data() + size_t(s) * tile_max;
+                    const int32_t te = h.transmit.source_element[t];
+                    const size_t s = size_t(slot_of_el[size_t(te)]);
+                    W.tx_el[l] = te;
+                    W.tx_delay[l] = W.tof.data() + s * tile_max;
+                    W.tx_weight[l] = W.w.data() + s * tile_max;
+                    if (!W.any[s]) W.tx_scale[l] = 0;
                     break;
                 }
                 case core::TransmitKind::PlaneWave:
-                    model->planeWaveTime(h.transmit.angle_rad[t], W.x.data(), W.z.data(), n, W.base.data());
-                    for (size_t p = 0; p < n; ++p) W.base[p] = W.base[p] * ffs + off;
+                case core::TransmitKind::VirtualSource: {
+                    float* d = W.txd.data() + l * tile_max;
+                    if (h.transmit.kind == core::TransmitKind::PlaneWave)
+                        model->planeWaveTime(h.transmit.angle_rad[t], W.x.data(), W.z.data(), n, d);
+                    else
+                        model->virtualSourceTime(h.transmit.virtual_source_m[t], W.x.data(), W.z.data(), n, d);
+                    for (size_t p = 0; p < n; ++p) d[p] *= ffs;
+                    W.tx_delay[l] = d;
+                    W.tx_weight[l] = W.ones.data();
                     break;
-                case core::TransmitKind::VirtualSource:
-                    model->virtualSourceTime(h.transmit.virtual_source_m[t], W.x.data(), W.z.data(), n, W.base.data());
-                    for (size_t p = 0; p < n; ++p) W.base[p] = W.base[p] * ffs + off;
-                    break;
+                }
             }
-            if (kt == 0) continue;
-            for (size_t r = 0; r < nrx; ++r) {
-                const int32_t re = rx_el[r];
+        }
+        // Receive channel outer, transmit inner: the receive rows stay in L1 across transmits.
+        // Every pixel's sum runs in this fixed order whatever the tile or thread.
+        for (size_t r = 0; r < nrx; ++r) {
+            const int32_t re = rx_el[r];
+            const size_t s = size_t(slot_of_el[size_t(re)]);
+            if (!W.any[s]) continue;
+            const float* tof = W.tof.data() + s * tile_max;
+            const float* wr = W.w.data() + s * tile_max;
+            for (size_t l = 0; l < nb; ++l) {
+                const float kt = W.tx_scale[l];
+                if (kt == 0) continue;
                 float mult = 1;
                 if (reciprocity) {
-                    if (re < te) continue;
-                    if (re > te) mult = 2;
+                    if (re < W.tx_el[l]) continue;
+                    if (re > W.tx_el[l]) mult = 2;
                 }
-                const size_t s = size_t(slot_of_el[size_t(re)]);
-                if (!W.any[s]) continue;
-                const float* tr = iqData() + ((t - b0) * nrx + r) * stride * 2;
-                const float* tof = W.tof.data() + s * tile_max;
-                const float* wr = W.w.data() + s * tile_max;
+                const float* tr = iqData() + (l * nrx + r) * stride * 2;
+                W.executed += double(n);
                 if (s2)
-                    detail::dasCoherence(cubic, W.base.data(), tof, wt, wr, kt * mult, mult, tr, hi, n, ac, s2, cn);
+                    detail::dasCoherence(cubic, W.tx_delay[l], tof, W.tx_off[l], W.tx_weight[l], wr, kt * mult, mult, tr, hi, n, ac, s2, cn);
                 else
-                    (cubic ? kernels.cubic : kernels.linear)(W.base.data(), tof, wt, wr, kt * mult, tr, hi, n, ac);
+                    (cubic ? kernels.cubic : kernels.linear)(W.tx_delay[l], tof, W.tx_off[l], W.tx_weight[l], wr, kt * mult, tr, hi, n, ac);
             }
         }
     }
@@ -370,6 +390,7 @@ struct Reconstructor::Impl {
             if (progress.cancelled && progress.cancelled()) cancel = true;
             return cancel;
         };
+        for (auto& w : workers) w.executed = 0;
         std::vector<std::pair<size_t, size_t>> jobs;
         for (size_t b0 = 0; b0 < ntx; b0 += bsz) {
             const size_t b1 = std::min(ntx, b0 + bsz);
@@ -439,6 +460,7 @@ struct Reconstructor::Impl {
                                  {"capture hash", t_hash}};
         timings.total_seconds = since(t_start);
         timings.effective_terms = double(npix) * double(ntx) * double(nrx);
+        for (auto& w : workers) timings.executed_terms += w.executed;
         return f;
     }
 };

@@ -163,7 +163,7 @@ int cmdReconstruct(const Argv& argv) {
         stack.recipe_json = recipe.toJson();
         stack.envelope.reserve(frames.size() * grid.nx() * grid.nz());
         std::vector<std::pair<std::string, double>> sums;
-        double terms = 0, total = 0;
+        double terms = 0, total = 0, executed = 0;
         const std::string title = (h.title.empty() ? path : h.title) + (h.isSynthetic() && h.title.find("synthetic") == std::string::npos ? " - synthetic demonstration data" : "");
         for (fi = 0; fi < frames.size(); ++fi) {
             core::Frame f = rec.run(frames[fi], prog);
@@ -175,6 +175,7 @@ int cmdReconstruct(const Argv& argv) {
             else
                 for (size_t k = 0; k < sums.size(); ++k) sums[k].second += t.stage_seconds[k].second;
             terms += t.effective_terms;
+            executed += t.executed_terms;
             total += t.total_seconds;
             if (auto png = a.value("--png")) {
                 const std::string p = pngPathFor(*png, frames[fi], frames.size() > 1);
@@ -195,6 +196,8 @@ int cmdReconstruct(const Argv& argv) {
                 if (name == "delay-and-sum") das = s;
             std::printf("throughput      %.3g effective terms/s in delay-and-sum (pixels x transmits x receives / s); %.3g end to end\n",
                         das > 0 ? terms / das : 0.0, total > 0 ? terms / total : 0.0);
+            std::printf("executed        %.3g terms evaluated (%.0f %% of effective: reciprocity and aperture skipping), %.3g terms/s\n", executed,
+                        terms > 0 ? 100 * executed / terms : 0.0, das > 0 ? executed / das : 0.0);
         }
         return 0;
     } catch (const UsageError& e) {

@@ -93,8 +93,8 @@ TEST(determinism_test, vector_kernels_match_scalar_kernels) {
     const auto best = recon::detail::bestKernels(), ref = recon::detail::scalarKernels();
     for (int cubic = 0; cubic < 2; ++cubic) {
         std::vector<float> a(2 * n, 0.5f), b(2 * n, 0.5f);
-        (cubic ? best.cubic : best.linear)(base.data(), tof.data(), wt.data(), wr.data(), 2.0f, tr.data(), hi, n, a.data());
-        (cubic ? ref.cubic : ref.linear)(base.data(), tof.data(), wt.data(), wr.data(), 2.0f, tr.data(), hi, n, b.data());
+        (cubic ? best.cubic : best.linear)(base.data(), tof.data(), 0.75f, wt.data(), wr.data(), 2.0f, tr.data(), hi, n, a.data());
+        (cubic ? ref.cubic : ref.linear)(base.data(), tof.data(), 0.75f, wt.data(), wr.data(), 2.0f, tr.data(), hi, n, b.data());
         for (size_t i = 0; i < 2 * n; ++i) ASSERT_NEAR(a[i], b[i], 1e-5) << best.name << " cubic " << cubic << " at " << i;
     }
 }
