@@ -102,7 +102,14 @@ void BeamformWorker::loop() {
             }
             recon::Progress prog;
             const quint64 gen = req.generation;
-            prog.progress = [this, gen, job, background](double f) { emit progress(gen, job, f, background); };
+            // At most one progress signal per percent (the run may report per block or tile).
+            auto last = std::make_shared<int>(-1);
+            prog.progress = [this, gen, job, background, last](double f) {
+                const int pct = static_cast<int>(f * 100);
+                if (pct == *last) return;
+                *last = pct;
+                emit progress(gen, job, f, background);
+            };
             prog.cancelled = [this] { return cancel_.load(); };
             ++runs_;
             const auto t0 = std::chrono::steady_clock::now();
