@@ -311,7 +311,8 @@ void CaseController::editRecipeValue(const std::string& key, const std::string& 
     next.set(key, value);  // throws SettingError
     if (next == recipe_) return;
     const core::ParamSpec spec = recipe_.spec(key);
-    editRecipe(next, tr("Set %1 to %2").arg(QString::fromStdString(spec.label), QString::fromStdString(next.valueText(key))));
+    const QString what = tr("Set %1 to %2").arg(QString::fromStdString(spec.label), QString::fromStdString(next.valueText(key)));
+    undo_.push(new RecipeEditCommand(what, recipe_, next, [this](const core::Recipe& v) { applyRecipe(v); }, key));
 }
 
 void CaseController::editRecipe(const core::Recipe& r, const QString& what) {

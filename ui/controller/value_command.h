@@ -3,9 +3,11 @@
 // Undo commands. Every edit is "replace a value with another": one generic template holds the
 // before/after values and a setter; one small class per kind of edit names it for the Edit
 // menu (and lets the undo stack tell kinds apart).
+#include <QElapsedTimer>
 #include <QUndoCommand>
 
 #include <functional>
+#include <string>
 #include <utility>
 #include <vector>
 
@@ -39,10 +41,29 @@ protected:
 using MeasurementList = std::vector<core::Measurement>;
 using FindingList = std::vector<core::Finding>;
 
-/// A recipe value (or a whole loaded recipe) changed.
+/// A recipe value (or a whole loaded recipe) changed. Edits of the same value less than 1.5 s
+/// apart (spin-box steps) merge into one undo entry; a whole-recipe edit (empty key) never merges.
 class RecipeEditCommand : public ValueCommand<core::Recipe> {
 public:
-    using ValueCommand::ValueCommand;
+    RecipeEditCommand(const QString& text, core::Recipe before, core::Recipe after, Setter setter,
+                      std::string key = {})
+        : ValueCommand(text, std::move(before), std::move(after), std::move(setter)), key_(std::move(key)) {
+        timer_.start();
+    }
+    int id() const override { return 0x52435045; }
+    bool mergeWith(const QUndoCommand* other) override {
+        if (other->id() != id()) return false;
+        const auto* o = static_cast<const RecipeEditCommand*>(other);
+        if (key_.empty() || o->key_ != key_ || timer_.elapsed() > 1500) return false;
+        after_ = o->after();
+        setText(o->text());
+        timer_.start();
+        return true;
+    }
+
+private:
+    std::string key_;
+    QElapsedTimer timer_;
 };
 /// A measurement was added.
 class AddMeasurementCommand : public ValueCommand<MeasurementList> {
