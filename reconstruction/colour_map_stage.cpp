@@ -50,7 +50,7 @@ const Lut& lutFor(const std::string& name) {
     } else if (name == "lab_gray") {
         lut = labRamp(0, 100, 0, 0, 0);
     } else if (name == "lab_heat") {
-        lut = labRamp(8, 97, 300, 100, 75);
+        lut = labRamp(8, 97, 300, 460, 75);  // violet, red, orange, yellow (hue through 360)
     } else if (name == "lab_ice") {
         lut = labRamp(8, 98, 280, 200, 45);
     } else {

@@ -98,3 +98,32 @@ TEST(determinism_test, vector_kernels_match_scalar_kernels) {
         for (size_t i = 0; i < 2 * n; ++i) ASSERT_NEAR(a[i], b[i], 1e-5) << best.name << " cubic " << cubic << " at " << i;
     }
 }
+
+// Progress reaches 1 and rises monotonically; a cancel request stops the run with
+// core::Cancelled (architecture: plain callbacks, polled between tiles).
+TEST(determinism_test, progress_and_cancellation_callbacks) {
+    testutil::SynthSpec s;
+    s.elements = 16;
+    s.samples = 600;
+    const auto path = testutil::tempPath("progress.h5");
+    testutil::writePointCapture(path, s, {{0.0, 5e-3, 1}});
+    auto r = recon::defaultRecipe();
+    r.setNumber("grid.x_min_mm", -2);
+    r.setNumber("grid.x_max_mm", 2);
+    r.setNumber("grid.z_min_mm", 3);
+    r.setNumber("grid.z_max_mm", 7);
+    r.setNumber("das.tile_pixels", 64);
+    core::CaptureReader cap(path);
+    recon::Reconstructor rec(cap, r, 2);
+    std::vector<double> seen;
+    recon::Progress p;
+    p.progress = [&](double x) { seen.push_back(x); };
+    rec.run(0, p);
+    ASSERT_FALSE(seen.empty());
+    EXPECT_DOUBLE_EQ(seen.back(), 1.0);
+    for (size_t i = 1; i < seen.size(); ++i) EXPECT_GE(seen[i], seen[i - 1]);
+    int polls = 0;
+    p.cancelled = [&] { return ++polls > 3; };
+    EXPECT_THROW(rec.run(0, p), core::Cancelled);
+    EXPECT_NO_THROW(rec.run(0));  // usable again after a cancelled run
+}
