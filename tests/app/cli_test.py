@@ -18,6 +18,7 @@ import sys
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 FIXTURES = os.path.join(HERE, "..", "core", "fixtures")
+sys.dont_write_bytecode = True  # keep the source tree clean
 sys.path.insert(0, FIXTURES)
 import write_capture as wc  # noqa: E402
 
