@@ -7,6 +7,8 @@
 //   umbra ... --screenshot FILE [--demo-annotate] [--capture N] [--export FILE]
 #include <QApplication>
 #include <QCommandLineParser>
+#include <QFileInfo>
+#include <QMessageBox>
 #include <QTimer>
 
 #include <algorithm>
@@ -54,6 +56,17 @@ int main(int argc, char** argv) {
     bool ok = true;
     if (cl.isSet(demo)) ok = w.openDemo(cl.value(demo));
     else if (!cl.positionalArguments().isEmpty()) ok = w.openPath(cl.positionalArguments().front());
+    else if (!screenshot && QFileInfo::exists(umbra::ui::CaseController::untitledAutosavePath()) &&
+             QMessageBox::question(&w, QObject::tr("Recover unsaved work?"),
+                                   QObject::tr("An untitled case from an earlier session was auto-saved but never saved:\n%1\n\n"
+                                               "Open it?").arg(umbra::ui::CaseController::untitledAutosavePath())) ==
+                 QMessageBox::Yes) {
+        try {
+            w.controller()->recoverUntitled();
+        } catch (const std::exception& e) {
+            QMessageBox::warning(&w, QObject::tr("Cannot recover"), QString::fromStdString(e.what()));
+        }
+    }
     auto* ctl = w.controller();
     const size_t cap = cl.value(capture).toULongLong();
     if (ok && cap > 0 && cap < ctl->captureCount()) ctl->setActiveCapture(cap);

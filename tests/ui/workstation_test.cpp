@@ -13,6 +13,7 @@
 #include <QFile>
 #include <QFileInfo>
 #include <QSpinBox>
+#include <QStandardPaths>
 #include <QUndoStack>
 
 #include <fstream>
@@ -331,4 +332,27 @@ TEST(workstation_test, newer_beamforming_request_supersedes_older) {
     used.mergeJson(ctl->envelope()->recipe_json, "frame recipe");
     EXPECT_NEAR(used.number(bkey), v2, 1e-9);
     EXPECT_LE(ctl->beamformRuns(), 3);  // the first run, at most the superseded one, the last
+}
+
+// An untitled case (a capture opened, never saved) is auto-saved to the application's data
+// folder and can be recovered as an untitled, modified case with its measurements.
+TEST(workstation_test, untitled_case_autosave_is_recoverable) {
+    QStandardPaths::setTestModeEnabled(true);  // keep the user's own folders out of it
+    QFile::remove(CaseController::untitledAutosavePath());
+    const QString dir = ui::test::tempDir();
+    const QString cap = makeCapture(dir, "one.h5", 1);
+    {
+        MainWindow w(quiet());
+        ASSERT_TRUE(openAndWait(w, cap));
+        w.controller()->addMeasurement(caliper(0, -1, 9, 1, 11));
+        w.autosaveNow();
+    }
+    ASSERT_TRUE(QFileInfo::exists(CaseController::untitledAutosavePath()));
+    MainWindow w(quiet());
+    w.controller()->recoverUntitled();
+    ASSERT_TRUE(waitUntil([&] { return w.controller()->hasImage(); }));
+    EXPECT_EQ(w.controller()->measurements().size(), 1u);
+    EXPECT_TRUE(w.controller()->casePath().isEmpty());
+    EXPECT_TRUE(w.controller()->isDirty());
+    QFile::remove(CaseController::untitledAutosavePath());
 }

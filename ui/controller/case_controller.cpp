@@ -1,7 +1,9 @@
 // SPDX-License-Identifier: MIT
 #include "ui/controller/case_controller.h"
 
+#include <QDir>
 #include <QElapsedTimer>
+#include <QStandardPaths>
 #include <QFileInfo>
 
 #include <algorithm>
@@ -206,13 +208,37 @@ void CaseController::saveCase(const QString& path) {
     extra_dirty_ = false;
     undo_.setClean();
     QFile::remove(QString::fromStdString(core::autosavePath(case_path_.toStdString())));
+    QFile::remove(untitledAutosavePath());
     emit caseChanged();
     emit dirtyChanged(false);
 }
 
+QString CaseController::untitledAutosavePath() {
+    const QString dir = QStandardPaths::writableLocation(QStandardPaths::AppDataLocation);
+    return QString::fromStdString(core::autosavePath((dir + "/untitled.umbracase").toStdString()));
+}
+
+void CaseController::recoverUntitled() {
+    core::CaseDocument doc = core::loadCase(untitledAutosavePath().toStdString());  // throws InputError
+    newCase();
+    doc_ = std::move(doc);
+    if (doc_.active_capture >= doc_.captures.size()) doc_.active_capture = 0;
+    extra_dirty_ = true;
+    openActiveCapture();
+    emit caseChanged();
+    emit findingsChanged();
+    emit dirtyChanged(true);
+}
+
 QString CaseController::autosave() {
-    if (case_path_.isEmpty()) return {};
-    const std::string p = core::autosavePath(case_path_.toStdString());
+    if (doc_.captures.empty() && doc_.findings.empty()) return {};
+    std::string p;
+    if (case_path_.isEmpty()) {
+        p = untitledAutosavePath().toStdString();
+        QDir().mkpath(QFileInfo(QString::fromStdString(p)).absolutePath());
+    } else {
+        p = core::autosavePath(case_path_.toStdString());
+    }
     core::saveCase(p, document());
     return QString::fromStdString(p);
 }

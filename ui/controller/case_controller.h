@@ -43,7 +43,11 @@ public:
     void openCase(const QString& path, bool from_autosave = false);
     /// Saves atomically to `path` (becomes the case path). Throws core::InputError.
     void saveCase(const QString& path);
-    /// Writes the autosave sibling of the case path (no-op for an untitled case); returns its path.
+    /// Where an untitled case is auto-saved: "<app data>/untitled.umbracase.autosave".
+    static QString untitledAutosavePath();
+    /// Opens the untitled case's auto-save as a new untitled, modified case. Throws core::InputError.
+    void recoverUntitled();
+    /// Writes the autosave sibling of the case path (untitled: untitledAutosavePath()); returns its path.
     QString autosave();
     /// Case document with the live recipe, view and measurements of the active capture folded in.
     core::CaseDocument document() const;

@@ -669,8 +669,10 @@ void MainWindow::demoAnnotate() {
 
 void MainWindow::closeEvent(QCloseEvent* e) {
     if (maybeSave()) {
-        if (!ctl_->casePath().isEmpty() && !ctl_->isDirty())
+        // Saved or deliberately discarded: the auto-saves are no longer needed.
+        if (!ctl_->casePath().isEmpty() && (!ctl_->isDirty() || opt_.interactive))
             QFile::remove(QString::fromStdString(core::autosavePath(ctl_->casePath().toStdString())));
+        if (opt_.interactive) QFile::remove(CaseController::untitledAutosavePath());
         e->accept();
     } else {
         e->ignore();
