@@ -26,6 +26,59 @@
 namespace umbra::recon {
 namespace {
 
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
+#define UMBRA_WIDE __attribute__((target_clones("avx512f", "avx2", "default")))
+#else
+#define UMBRA_WIDE
+#endif
+
+// cos(x) for x in [0, pi/2] by its Taylor series to x^10 (error < 5e-7); inline and
+// branch-free so the weight loops vectorise.
+inline float cosQuarter(float x) {
+    const float x2 = x * x;
+    return 1 + x2 * (-1.0f / 2 + x2 * (1.0f / 24 + x2 * (-1.0f / 720 + x2 * (1.0f / 40320 + x2 * (-1.0f / 3628800)))));
+}
+
+// Dynamic-aperture weights of the element at fxe for n pixels: Hann/Tukey taper (flat part
+// `flat`, taper 1/inv_taper of the half aperture), half aperture max(z k, fp).
+UMBRA_WIDE void taperedWeights(float fxe, float k, float fp, float flat, float inv_taper, const float* __restrict x,
+                               const float* __restrict z, size_t n, float* __restrict w) {
+    for (size_t p = 0; p < n; ++p) {
+        const float zp = z[p] > 0.0f ? z[p] : 0.0f;
+        float half = zp * k;
+        half = half > fp ? half : fp;
+        const float a = std::fabs(fxe - x[p]) / half;
+        float t = (a - flat) * inv_taper;
+        t = t < 0.0f ? 0.0f : t;
+        t = t > 1.0f ? 1.0f : t;
+        const float c = cosQuarter(1.5707963f * t);
+        w[p] = a > 1.0f ? 0.0f : c * c;
+    }
+}
+
+// Rectangular dynamic aperture: the edge element weighted by the part of its pitch inside.
+UMBRA_WIDE void rectWeights(float fxe, float k, float fp, float ip, const float* __restrict x, const float* __restrict z, size_t n,
+                            float* __restrict w) {
+    for (size_t p = 0; p < n; ++p) {
+        const float zp = z[p] > 0.0f ? z[p] : 0.0f;
+        float half = zp * k;
+        half = half > fp ? half : fp;
+        float v = (half - std::fabs(fxe - x[p])) * ip + 0.5f;
+        v = v < 0.0f ? 0.0f : v;
+        w[p] = v > 1.0f ? 1.0f : v;
+    }
+}
+
+// Scales n values by s and counts those of `w` above zero.
+UMBRA_WIDE int scaleAndCount(float* __restrict t, float s, const float* __restrict w, size_t n) {
+    int active = 0;
+    for (size_t p = 0; p < n; ++p) {
+        t[p] *= s;
+        active += w[p] > 0.0f ? 1 : 0;
+    }
+    return active;
+}
+
 using Clock = std::chrono::steady_clock;
 double since(Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); }
 
@@ -202,12 +255,6 @@ struct Reconstructor::Impl {
         }
     }
 
-    // cos(x) for x in [0, pi/2] by its Taylor series to x^10 (error < 5e-7); inline and
-    // branch-free so the weight loops vectorise.
-    static inline float cosQuarter(float x) {
-        const float x2 = x * x;
-        return 1 + x2 * (-1.0f / 2 + x2 * (1.0f / 24 + x2 * (-1.0f / 720 + x2 * (1.0f / 40320 + x2 * (-1.0f / 3628800)))));
-    }
     // Window at |u| = a >= 0 (0 outside [0, 1]): Hann cos^2(pi a / 2); Tukey flat to 1 - alpha then
     // a Hann taper; rectangular 1.
     static inline float windowAt(float a, int kind, float alpha) {
@@ -229,27 +276,11 @@ struct Reconstructor::Impl {
         }
         const float k = float(1 / (2 * das.f_number)), fp = float(pitch), fxe = float(xe), ip = float(1 / pitch);
         if (kind == 0) {
-            // Rectangular: the edge element weighted by the part of its pitch inside (no jumps with depth).
-            for (size_t p = 0; p < n; ++p) {
-                const float half = std::max(std::max(z[p], 0.0f) * k, fp);
-                w[p] = std::clamp((half - std::fabs(fxe - x[p])) * ip + 0.5f, 0.0f, 1.0f);
-            }
+            rectWeights(fxe, k, fp, ip, x, z, n, w);
             return;
         }
-        // Hann (alpha = 1 taper over the whole half aperture) or Tukey; written without calls
-        // or branches so the loop vectorises.
         const float flat = kind == 1 ? 0.0f : 1 - alpha, inv_taper = kind == 1 ? 1.0f : (alpha > 0 ? 1 / alpha : 0.0f);
-        for (size_t p = 0; p < n; ++p) {
-            const float zp = z[p] > 0.0f ? z[p] : 0.0f;
-            float half = zp * k;
-            half = half > fp ? half : fp;
-            const float a = std::fabs(fxe - x[p]) / half;
-            float t = (a - flat) * inv_taper;
-            t = t < 0.0f ? 0.0f : t;
-            t = t > 1.0f ? 1.0f : t;
-            const float c = cosQuarter(1.5707963f * t);
-            w[p] = a > 1.0f ? 0.0f : c * c;
-        }
+        taperedWeights(fxe, k, fp, flat, inv_taper, x, z, n, w);
     }
 
     void beamformTile(Worker& W, const Tile& T, size_t b0, size_t b1) {
@@ -277,11 +308,8 @@ struct Reconstructor::Impl {
             float* tof = W.tof.data() + s * tile_max;
             float* w = W.w.data() + s * tile_max;
             model->pointTime(pos, W.x.data(), W.z.data(), n, tof);
-            for (size_t p = 0; p < n; ++p) tof[p] *= ffs;
             apertureWeights(pos[0], W.x.data(), W.z.data(), n, pitch, xc, half_len, w);
-            int active = 0;
-            for (size_t p = 0; p < n; ++p) active += w[p] > 0.0f ? 1 : 0;
-            W.any[s] = active > 0;
+            W.any[s] = scaleAndCount(tof, ffs, w, n) > 0;
         }
         float* ac = acc.data() + 2 * T.offset;
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
