@@ -2,6 +2,7 @@
 #include "reconstruction/das_stage.h"
 
 #include <cmath>
+#include <cstdlib>
 
 #include "core/error.h"
 #include "reconstruction/detail/spec_helpers.h"
@@ -103,6 +104,12 @@ void cubicScalar(const float* __restrict ta, const float* __restrict tb, float o
     }
 }
 
+void linear2Scalar(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2, float off2,
+                   const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi, size_t n, float* acc) {
+    linearScalar(ta1, tb, off1, wt1, wr, k1, tr1, hi, n, acc);
+    linearScalar(ta2, tb, off2, wt2, wr, k2, tr2, hi, n, acc);
+}
+
 }  // namespace
 
 #if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
@@ -118,26 +125,75 @@ namespace {
 #define UMBRA_AVX512 __attribute__((target("avx512f,avx512dq,avx512vl,avx2,fma")))
 #define UMBRA_AVX2 __attribute__((target("avx2,fma")))
 
-UMBRA_AVX512 void linearAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
-                               float hi, size_t n, float* acc) {
+// Linear interpolation without gathers: one 16-byte load per pixel fetches (re, im) of sample i
+// and i + 1 together; two permutes split them. Same arithmetic as linearScalar's vector form.
+UMBRA_AVX512 inline void loadPairs(const float* tr, __m256i i, __m512& A, __m512& B) {
+    alignas(32) int idx[8];
+    _mm256_store_si256(reinterpret_cast<__m256i*>(idx), i);
+    __m512 z0 = _mm512_insertf32x4(_mm512_setzero_ps(), _mm_loadu_ps(tr + 2 * idx[0]), 0);
+    z0 = _mm512_insertf32x4(z0, _mm_loadu_ps(tr + 2 * idx[1]), 1);
+    z0 = _mm512_insertf32x4(z0, _mm_loadu_ps(tr + 2 * idx[2]), 2);
+    z0 = _mm512_insertf32x4(z0, _mm_loadu_ps(tr + 2 * idx[3]), 3);
+    __m512 z1 = _mm512_insertf32x4(_mm512_setzero_ps(), _mm_loadu_ps(tr + 2 * idx[4]), 0);
+    z1 = _mm512_insertf32x4(z1, _mm_loadu_ps(tr + 2 * idx[5]), 1);
+    z1 = _mm512_insertf32x4(z1, _mm_loadu_ps(tr + 2 * idx[6]), 2);
+    z1 = _mm512_insertf32x4(z1, _mm_loadu_ps(tr + 2 * idx[7]), 3);
+    const __m512i ea = _mm512_set_epi64(14, 12, 10, 8, 6, 4, 2, 0), eb = _mm512_set_epi64(15, 13, 11, 9, 7, 5, 3, 1);
+    A = _mm512_castpd_ps(_mm512_permutex2var_pd(_mm512_castps_pd(z0), ea, _mm512_castps_pd(z1)));
+    B = _mm512_castpd_ps(_mm512_permutex2var_pd(_mm512_castps_pd(z0), eb, _mm512_castps_pd(z1)));
+}
+
+UMBRA_AVX512 void linearLoadsAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                                    float hi, size_t n, float* acc) {
     const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k), voff = _mm256_set1_ps(off);
     const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
-    const __m512d zero8 = _mm512_setzero_pd();
-    const double* d0 = reinterpret_cast<const double*>(tr);
+#define D(x) _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), x, 0))
     for (size_t p = 0; p < n; p += 8) {
         __m256 q = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta + p), _mm256_loadu_ps(tb + p)), voff);
         q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
         const __m256i i = _mm256_cvttps_epi32(q);
         const __m256 f = _mm256_sub_ps(q, _mm256_cvtepi32_ps(i));
         const __m256 w = _mm256_mul_ps(_mm256_mul_ps(vk, _mm256_loadu_ps(wt + p)), _mm256_loadu_ps(wr + p));
-        const __m512 a = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0, 8));
-        const __m512 b = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 1, 8));
-        const __m512 f2 = _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), f, 0));
-        const __m512 w2 = _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), w, 0));
-        const __m512 v = _mm512_fmadd_ps(f2, _mm512_sub_ps(b, a), a);
-        _mm512_storeu_ps(acc + 2 * p, _mm512_fmadd_ps(w2, v, _mm512_loadu_ps(acc + 2 * p)));
+        __m512 a, b;
+        loadPairs(tr, i, a, b);
+        const __m512 v = _mm512_fmadd_ps(D(f), _mm512_sub_ps(b, a), a);
+        _mm512_storeu_ps(acc + 2 * p, _mm512_fmadd_ps(D(w), v, _mm512_loadu_ps(acc + 2 * p)));
     }
+#undef D
 }
+
+UMBRA_AVX512 void linear2LoadsAvx512(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2,
+                                     float off2, const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi,
+                                     size_t n, float* acc) {
+    const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi);
+    const __m256 vk1 = _mm256_set1_ps(k1), vo1 = _mm256_set1_ps(off1), vk2 = _mm256_set1_ps(k2), vo2 = _mm256_set1_ps(off2);
+    const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
+#define D(x) _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), x, 0))
+    for (size_t p = 0; p < n; p += 8) {
+        const __m256 b = _mm256_loadu_ps(tb + p), r = _mm256_loadu_ps(wr + p);
+        __m256 q1 = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta1 + p), b), vo1);
+        __m256 q2 = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta2 + p), b), vo2);
+        q1 = _mm256_min_ps(_mm256_max_ps(q1, one), vhi);
+        q2 = _mm256_min_ps(_mm256_max_ps(q2, one), vhi);
+        const __m256i i1 = _mm256_cvttps_epi32(q1), i2 = _mm256_cvttps_epi32(q2);
+        const __m256 f1 = _mm256_sub_ps(q1, _mm256_cvtepi32_ps(i1)), f2 = _mm256_sub_ps(q2, _mm256_cvtepi32_ps(i2));
+        const __m256 w1 = _mm256_mul_ps(_mm256_mul_ps(vk1, _mm256_loadu_ps(wt1 + p)), r);
+        const __m256 w2 = _mm256_mul_ps(_mm256_mul_ps(vk2, _mm256_loadu_ps(wt2 + p)), r);
+        __m512 a1, b1, a2, b2;
+        loadPairs(tr1, i1, a1, b1);
+        loadPairs(tr2, i2, a2, b2);
+        const __m512 v1 = _mm512_fmadd_ps(D(f1), _mm512_sub_ps(b1, a1), a1);
+        const __m512 v2 = _mm512_fmadd_ps(D(f2), _mm512_sub_ps(b2, a2), a2);
+        __m512 ac = _mm512_loadu_ps(acc + 2 * p);
+        ac = _mm512_fmadd_ps(D(w1), v1, ac);
+        ac = _mm512_fmadd_ps(D(w2), v2, ac);
+        _mm512_storeu_ps(acc + 2 * p, ac);
+    }
+#undef D
+}
+
+void linear2Avx2(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2, float off2,
+                 const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi, size_t n, float* acc);
 
 UMBRA_AVX512 void cubicAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
                               float hi, size_t n, float* acc) {
@@ -176,16 +232,19 @@ UMBRA_AVX2 void linearAvx2(const float* ta, const float* tb, float off, const fl
                            float hi, size_t n, float* acc) {
     const __m128 one = _mm_set1_ps(1.0f), vhi = _mm_set1_ps(hi), vk = _mm_set1_ps(k), voff = _mm_set1_ps(off);
     const __m256i dup = _mm256_set_epi32(3, 3, 2, 2, 1, 1, 0, 0);
-    const __m256d zero4 = _mm256_setzero_pd(), ones4 = _mm256_castsi256_pd(_mm256_set1_epi64x(-1));
-    const double* d0 = reinterpret_cast<const double*>(tr);
     for (size_t p = 0; p < n; p += 4) {
         __m128 q = _mm_add_ps(_mm_add_ps(_mm_loadu_ps(ta + p), _mm_loadu_ps(tb + p)), voff);
         q = _mm_min_ps(_mm_max_ps(q, one), vhi);
         const __m128i i = _mm_cvttps_epi32(q);
         const __m128 f = _mm_sub_ps(q, _mm_cvtepi32_ps(i));
         const __m128 w = _mm_mul_ps(_mm_mul_ps(vk, _mm_loadu_ps(wt + p)), _mm_loadu_ps(wr + p));
-        const __m256 a = _mm256_castpd_ps(_mm256_mask_i32gather_pd(zero4, d0, i, ones4, 8));
-        const __m256 b = _mm256_castpd_ps(_mm256_mask_i32gather_pd(zero4, d0 + 1, i, ones4, 8));
+        alignas(16) int idx[4];
+        _mm_store_si128(reinterpret_cast<__m128i*>(idx), i);
+        // 16 bytes per pixel: (re, im) of samples i and i + 1; split into a = s_i, b = s_i+1.
+        const __m256d z0 = _mm256_castps_pd(_mm256_insertf128_ps(_mm256_castps128_ps256(_mm_loadu_ps(tr + 2 * idx[0])), _mm_loadu_ps(tr + 2 * idx[1]), 1));
+        const __m256d z1 = _mm256_castps_pd(_mm256_insertf128_ps(_mm256_castps128_ps256(_mm_loadu_ps(tr + 2 * idx[2])), _mm_loadu_ps(tr + 2 * idx[3]), 1));
+        const __m256 a = _mm256_castpd_ps(_mm256_permute4x64_pd(_mm256_unpacklo_pd(z0, z1), 0xD8));
+        const __m256 b = _mm256_castpd_ps(_mm256_permute4x64_pd(_mm256_unpackhi_pd(z0, z1), 0xD8));
         const __m256 f2 = _mm256_permutevar8x32_ps(_mm256_insertf128_ps(_mm256_setzero_ps(), f, 0), dup);
         const __m256 w2 = _mm256_permutevar8x32_ps(_mm256_insertf128_ps(_mm256_setzero_ps(), w, 0), dup);
         const __m256 v = _mm256_fmadd_ps(f2, _mm256_sub_ps(b, a), a);
@@ -193,24 +252,34 @@ UMBRA_AVX2 void linearAvx2(const float* ta, const float* tb, float off, const fl
     }
 }
 
+void linear2Avx2(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2, float off2,
+                 const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi, size_t n, float* acc) {
+    linearAvx2(ta1, tb, off1, wt1, wr, k1, tr1, hi, n, acc);
+    linearAvx2(ta2, tb, off2, wt2, wr, k2, tr2, hi, n, acc);
+}
+
 }  // namespace
 
-DasKernels bestKernels() {
-    static const DasKernels k = [] {
-        __builtin_cpu_init();
-        if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") && __builtin_cpu_supports("avx512vl") &&
-            __builtin_cpu_supports("fma"))
-            return DasKernels{linearAvx512, cubicAvx512, "avx512"};
-        if (__builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma")) return DasKernels{linearAvx2, cubicScalar, "avx2"};
-        return DasKernels{linearScalar, cubicScalar, "scalar"};
-    }();
-    return k;
+std::vector<DasKernels> availableKernels() {
+    std::vector<DasKernels> v;
+    __builtin_cpu_init();
+    if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") && __builtin_cpu_supports("avx512vl") &&
+        __builtin_cpu_supports("fma"))
+        v.push_back(DasKernels{linearLoadsAvx512, cubicAvx512, linear2LoadsAvx512, "avx512"});
+    if (__builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma")) v.push_back(DasKernels{linearAvx2, cubicScalar, linear2Avx2, "avx2"});
+    v.push_back(scalarKernels());
+    return v;
 }
 #else
-DasKernels bestKernels() { return scalarKernels(); }
+std::vector<DasKernels> availableKernels() { return {scalarKernels()}; }
 #endif
 
-DasKernels scalarKernels() { return DasKernels{linearScalar, cubicScalar, "scalar"}; }
+DasKernels bestKernels() {
+    static const DasKernels k = availableKernels().front();
+    return k;
+}
+
+DasKernels scalarKernels() { return DasKernels{linearScalar, cubicScalar, linear2Scalar, "scalar"}; }
 
 void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, float mult,
                   const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt) {

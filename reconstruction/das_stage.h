@@ -9,6 +9,7 @@
 // Ultrasonics Symposium 1999).
 #include <cstddef>
 #include <string>
+#include <vector>
 
 #include "core/parameters.h"
 
@@ -51,15 +52,24 @@ constexpr size_t kLanes = 16;
 using DasKernel = void (*)(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
                            float hi, size_t n, float* acc);
 
+/// Two transmits with one receive row: exactly DasKernel(ta1, ...) then DasKernel(ta2, ...)
+/// (the same operations in the same order), sharing the receive loads and accumulator traffic.
+using DasKernel2 = void (*)(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2, float off2,
+                            const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi, size_t n,
+                            float* acc);
+
 struct DasKernels {
     DasKernel linear, cubic;
-    const char* name;  ///< "avx512", "avx2" or "scalar"
+    DasKernel2 linear2;  ///< fused pair for linear interpolation
+    const char* name;    ///< "avx512", "avx2" or "scalar"
 };
 /// Portable kernels (any x86-64 or other CPU).
 DasKernels scalarKernels();
 /// The fastest kernels this CPU runs (chosen at run time: AVX-512, AVX2+FMA, else scalar).
 /// Every path gives the same result for any tile size or thread count on one machine.
 DasKernels bestKernels();
+/// Every kernel set this CPU can run, fastest first (for tests).
+std::vector<DasKernels> availableKernels();
 
 /// As the kernels, and also accumulates |weighted sample|^2 into s2 and the number of
 /// contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.

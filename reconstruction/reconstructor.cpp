@@ -152,6 +152,11 @@ struct Reconstructor::Impl {
         std::vector<float> tx_off, tx_scale;
         std::vector<int32_t> tx_el;
         double executed = 0;  // terms evaluated in this run
+        struct Pair {
+            size_t l;
+            float mult, k;
+        };
+        std::vector<Pair> pairs;
     };
     std::vector<Worker> workers;
 
@@ -360,6 +365,8 @@ struct Reconstructor::Impl {
             if (!W.any[s]) continue;
             const float* tof = W.tof.data() + s * tile_max;
             const float* wr = W.w.data() + s * tile_max;
+            // Transmits that contribute to this receive row, with their weight factors.
+            W.pairs.clear();
             for (size_t l = 0; l < nb; ++l) {
                 const float kt = W.tx_scale[l];
                 if (kt == 0) continue;
@@ -368,12 +375,26 @@ struct Reconstructor::Impl {
                     if (re < W.tx_el[l]) continue;
                     if (re > W.tx_el[l]) mult = 2;
                 }
-                const float* tr = iqData() + (l * nrx + r) * stride * 2;
-                W.executed += double(n);
+                W.pairs.push_back({l, mult, kt * mult});
+            }
+            W.executed += double(n) * double(W.pairs.size());
+            auto trace = [&](size_t l) { return iqData() + (l * nrx + r) * stride * 2; };
+            size_t j = 0;
+            if (!s2 && !cubic)  // fused pairs: same operations, in the same order, as one call each
+                for (; j + 1 < W.pairs.size(); j += 2) {
+                    const auto& a = W.pairs[j];
+                    const auto& b = W.pairs[j + 1];
+                    kernels.linear2(W.tx_delay[a.l], W.tx_off[a.l], W.tx_weight[a.l], a.k, trace(a.l), W.tx_delay[b.l], W.tx_off[b.l],
+                                    W.tx_weight[b.l], b.k, trace(b.l), tof, wr, hi, n, ac);
+                }
+            for (; j < W.pairs.size(); ++j) {
+                const auto& a = W.pairs[j];
                 if (s2)
-                    detail::dasCoherence(cubic, W.tx_delay[l], tof, W.tx_off[l], W.tx_weight[l], wr, kt * mult, mult, tr, hi, n, ac, s2, cn);
+                    detail::dasCoherence(cubic, W.tx_delay[a.l], tof, W.tx_off[a.l], W.tx_weight[a.l], wr, a.k, a.mult, trace(a.l), hi, n, ac,
+                                         s2, cn);
                 else
-                    (cubic ? kernels.cubic : kernels.linear)(W.tx_delay[l], tof, W.tx_off[l], W.tx_weight[l], wr, kt * mult, tr, hi, n, ac);
+                    (cubic ? kernels.cubic : kernels.linear)(W.tx_delay[a.l], tof, W.tx_off[a.l], W.tx_weight[a.l], wr, a.k, trace(a.l), hi, n,
+                                                             ac);
             }
         }
     }

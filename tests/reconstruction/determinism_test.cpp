@@ -90,12 +90,23 @@ TEST(determinism_test, vector_kernels_match_scalar_kernels) {
         wr[p] = p % 7 == 0 ? 0.0f : wgt(rng);
     }
     const float hi = float(ns + recon::detail::kTracePad);
-    const auto best = recon::detail::bestKernels(), ref = recon::detail::scalarKernels();
+    const auto ref = recon::detail::scalarKernels();
+    for (const auto& best : recon::detail::availableKernels()) {
     for (int cubic = 0; cubic < 2; ++cubic) {
         std::vector<float> a(2 * n, 0.5f), b(2 * n, 0.5f);
         (cubic ? best.cubic : best.linear)(base.data(), tof.data(), 0.75f, wt.data(), wr.data(), 2.0f, tr.data(), hi, n, a.data());
         (cubic ? ref.cubic : ref.linear)(base.data(), tof.data(), 0.75f, wt.data(), wr.data(), 2.0f, tr.data(), hi, n, b.data());
         for (size_t i = 0; i < 2 * n; ++i) ASSERT_NEAR(a[i], b[i], 1e-5) << best.name << " cubic " << cubic << " at " << i;
+    }
+    // The fused two-transmit kernel equals two single calls (second transmit: shifted delays).
+    std::vector<float> base2(n);
+    for (size_t p = 0; p < n; ++p) base2[p] = base[p] * 0.9f + 3;
+    std::vector<float> a(2 * n, 0.25f), b(2 * n, 0.25f);
+    best.linear2(base.data(), 0.75f, wt.data(), 2.0f, tr.data(), base2.data(), -1.5f, wr.data(), 1.0f, tr.data(), tof.data(), wr.data(), hi,
+                 n, a.data());
+    best.linear(base.data(), tof.data(), 0.75f, wt.data(), wr.data(), 2.0f, tr.data(), hi, n, b.data());
+    best.linear(base2.data(), tof.data(), -1.5f, wr.data(), wr.data(), 1.0f, tr.data(), hi, n, b.data());
+    for (size_t i = 0; i < 2 * n; ++i) ASSERT_EQ(a[i], b[i]) << best.name << " fused pair at " << i;
     }
 }
 
