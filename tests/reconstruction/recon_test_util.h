@@ -99,11 +99,22 @@ inline core::CaptureHeader writePointCapture(const std::string& path, const Synt
     return h;
 }
 
+/// This test process's scratch directory (removed when the process exits).
+inline std::filesystem::path tempDir() {
+    return std::filesystem::temp_directory_path() / ("umbra_recon_tests_" + std::to_string(::getpid()));
+}
+struct TempDirCleanup {
+    ~TempDirCleanup() {
+        std::error_code ec;
+        std::filesystem::remove_all(tempDir(), ec);
+    }
+};
+inline TempDirCleanup temp_dir_cleanup;
+
 /// A fresh temporary file name under the system temp directory.
 inline std::string tempPath(const std::string& name) {
-    auto dir = std::filesystem::temp_directory_path() / ("umbra_recon_tests_" + std::to_string(::getpid()));
-    std::filesystem::create_directories(dir);
-    return (dir / name).string();
+    std::filesystem::create_directories(tempDir());
+    return (tempDir() / name).string();
 }
 
 }  // namespace umbra::testutil
