@@ -30,6 +30,7 @@ struct SynthSpec {
     size_t samples = 1000;
     core::TransmitKind kind = core::TransmitKind::SingleElement;
     std::vector<double> angles;  // plane wave
+    std::vector<core::Vec3> sources;  // virtual source
     std::optional<double> attenuation;
 };
 
@@ -49,9 +50,12 @@ inline core::CaptureHeader makeHeader(const SynthSpec& s) {
     if (s.kind == core::TransmitKind::SingleElement) {
         for (size_t e = 0; e < s.elements; ++e) h.transmit.source_element.push_back(int32_t(e));
         ntx = s.elements;
-    } else {
+    } else if (s.kind == core::TransmitKind::PlaneWave) {
         h.transmit.angle_rad = s.angles;
         ntx = s.angles.size();
+    } else {
+        h.transmit.virtual_source_m = s.sources;
+        ntx = s.sources.size();
     }
     for (size_t e = 0; e < s.elements; ++e) h.receive.element_index.push_back(int32_t(e));
     h.receive.sampling_frequency_hz = s.fs;
@@ -81,9 +85,14 @@ inline core::CaptureHeader writePointCapture(const std::string& path, const Synt
                 if (s.kind == core::TransmitKind::SingleElement) {
                     const double xt = h.array.element_position_m[t][0];
                     ttx = std::hypot(p.x - xt, p.z) / s.c;
-                } else {
+                } else if (s.kind == core::TransmitKind::PlaneWave) {
                     const double a = s.angles[t];
                     ttx = (p.z * std::cos(a) + p.x * std::sin(a)) / s.c;
+                } else {
+                    // Capture format v1: time zero when the wavefront passes the origin.
+                    const auto& v = s.sources[t];
+                    const double vr = std::hypot(v[0], v[2]), d = std::hypot(p.x - v[0], p.z - v[2]);
+                    ttx = v[2] <= 0 ? (d - vr) / s.c : (vr + (p.z >= v[2] ? d : -d)) / s.c;
                 }
                 const double tau = ttx + std::hypot(p.x - xr, p.z) / s.c;
                 const long k0 = long(std::floor((tau - 5 * sig) * s.fs)), k1 = long(std::ceil((tau + 5 * sig) * s.fs));
