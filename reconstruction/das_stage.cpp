@@ -195,13 +195,21 @@ UMBRA_AVX512 void linear2LoadsAvx512(const float* ta1, float off1, const float* 
 void linear2Avx2(const float* ta1, float off1, const float* wt1, float k1, const float* tr1, const float* ta2, float off2,
                  const float* wt2, float k2, const float* tr2, const float* tb, const float* wr, float hi, size_t n, float* acc);
 
+// 4-point Lagrange: one 32-byte load per pixel fetches (re, im) of samples i-1 .. i+2; a 4 x 8
+// transpose of 64-bit pairs (eight permutes) gives the four sample vectors.
 UMBRA_AVX512 void cubicAvx512(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
                               float hi, size_t n, float* acc) {
     const __m256 one = _mm256_set1_ps(1.0f), vhi = _mm256_set1_ps(hi), vk = _mm256_set1_ps(k), voff = _mm256_set1_ps(off);
     const __m256 two = _mm256_set1_ps(2.0f), half = _mm256_set1_ps(0.5f), sixth = _mm256_set1_ps(1.0f / 6);
     const __m512i dup = _mm512_set_epi32(7, 7, 6, 6, 5, 5, 4, 4, 3, 3, 2, 2, 1, 1, 0, 0);
+    const __m512i t0 = _mm512_set_epi64(13, 9, 5, 1, 12, 8, 4, 0), t1 = _mm512_set_epi64(15, 11, 7, 3, 14, 10, 6, 2);
+    const __m512i lo = _mm512_set_epi64(11, 10, 9, 8, 3, 2, 1, 0), hi4 = _mm512_set_epi64(15, 14, 13, 12, 7, 6, 5, 4);
+#define D(x) _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), x, 0))
+#define PAIR(j0, j1) \
+    _mm512_mask_insertf64x4(zero8, 0xFF, _mm512_mask_insertf64x4(zero8, 0xFF, zero8, _mm256_loadu_pd(d + idx[j0] - 1), 0), \
+                            _mm256_loadu_pd(d + idx[j1] - 1), 1)
+    const double* d = reinterpret_cast<const double*>(tr);  // element m = complex sample m (re, im)
     const __m512d zero8 = _mm512_setzero_pd();
-    const double* d0 = reinterpret_cast<const double*>(tr);
     for (size_t p = 0; p < n; p += 8) {
         __m256 q = _mm256_add_ps(_mm256_add_ps(_mm256_loadu_ps(ta + p), _mm256_loadu_ps(tb + p)), voff);
         q = _mm256_min_ps(_mm256_max_ps(q, one), vhi);
@@ -214,18 +222,21 @@ UMBRA_AVX512 void cubicAvx512(const float* ta, const float* tb, float off, const
         const __m256 c2 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(_mm256_sub_ps(_mm256_setzero_ps(), fp1), f), fm2), half);
         const __m256 c3 = _mm256_mul_ps(_mm256_mul_ps(_mm256_mul_ps(fp1, f), fm1), sixth);
         const __m256 w = _mm256_mul_ps(_mm256_mul_ps(vk, _mm256_loadu_ps(wt + p)), _mm256_loadu_ps(wr + p));
-        const __m512 s0 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 - 1, 8));
-        const __m512 s1 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0, 8));
-        const __m512 s2 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 1, 8));
-        const __m512 s3 = _mm512_castpd_ps(_mm512_mask_i32gather_pd(zero8, 0xFF, i, d0 + 2, 8));
-#define D(x) _mm512_mask_permutexvar_ps(_mm512_setzero_ps(), 0xFFFF, dup, _mm512_insertf32x8(_mm512_setzero_ps(), x, 0))
+        alignas(32) int idx[8];
+        _mm256_store_si256(reinterpret_cast<__m256i*>(idx), i);
+        const __m512d z01 = PAIR(0, 1), z23 = PAIR(2, 3), z45 = PAIR(4, 5), z67 = PAIR(6, 7);
+        const __m512d a0 = _mm512_permutex2var_pd(z01, t0, z23), a1 = _mm512_permutex2var_pd(z01, t1, z23);
+        const __m512d b0 = _mm512_permutex2var_pd(z45, t0, z67), b1 = _mm512_permutex2var_pd(z45, t1, z67);
+        const __m512 s0 = _mm512_castpd_ps(_mm512_permutex2var_pd(a0, lo, b0)), s1 = _mm512_castpd_ps(_mm512_permutex2var_pd(a0, hi4, b0));
+        const __m512 s2 = _mm512_castpd_ps(_mm512_permutex2var_pd(a1, lo, b1)), s3 = _mm512_castpd_ps(_mm512_permutex2var_pd(a1, hi4, b1));
         __m512 v = _mm512_mul_ps(D(c0), s0);
         v = _mm512_fmadd_ps(D(c1), s1, v);
         v = _mm512_fmadd_ps(D(c2), s2, v);
         v = _mm512_fmadd_ps(D(c3), s3, v);
         _mm512_storeu_ps(acc + 2 * p, _mm512_fmadd_ps(D(w), v, _mm512_loadu_ps(acc + 2 * p)));
-#undef D
     }
+#undef PAIR
+#undef D
 }
 
 UMBRA_AVX2 void linearAvx2(const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
