@@ -67,6 +67,9 @@ struct Timings {
 ///   core::CaptureReader cap("weld.h5");
 ///   recon::Reconstructor rec(cap, recon::defaultRecipe());
 ///   core::Frame f = rec.run(0);           // linear envelope, before TCG
+///
+/// `capture` must outlive the Reconstructor. One run() at a time per Reconstructor (it owns
+/// the worker threads and buffers); use one Reconstructor per concurrent job.
 class Reconstructor {
 public:
     Reconstructor(const core::CaptureReader& capture, const core::Recipe& recipe, int threads = 0 /*all cores*/);
