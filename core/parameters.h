@@ -30,6 +30,9 @@ struct ParamSpec {
     std::string default_text;         ///< Choice / Text default
     bool display_only = false;        ///< true: changing it re-maps the stored envelope, no re-beamforming
     double step = 0;                  ///< suggested UI step (0 = choose from range)
+    /// For Real/Integer parameters where 0 is not a value but a mode: the text a user sees for 0
+    /// (e.g. "from capture", "automatic"). Empty: 0 is an ordinary value.
+    std::string zero_means;
 };
 
 struct StageSpec {
