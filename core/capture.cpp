@@ -108,6 +108,8 @@ std::vector<Problem> checkHeader(const CaptureHeader& h) {
     }
     if (!h.transmit.apodization.empty() && h.transmit.apodization.size() != ntx * nel)
         add("/transmit/apodization", "shape must be [N_tx, N_el] = [" + std::to_string(ntx) + ", " + std::to_string(nel) + "]");
+    for (float w : h.transmit.apodization)
+        if (!std::isfinite(w)) { add("/transmit/apodization", "non-finite weight"); break; }
 
     const size_t nrx = h.receives();
     if (nrx == 0) add("/receive/element_index", "no receive channels");
@@ -166,6 +168,10 @@ std::vector<Problem> checkHeader(const CaptureHeader& h) {
     if (h.truth) {
         if (h.truth->scatterer_amplitude.size() != h.truth->scatterer_position_m.size())
             add("/truth/scatterer_amplitude", "length differs from /truth/scatterer_position_m");
+        for (auto& v : h.truth->scatterer_position_m)
+            if (!finite3(v)) { add("/truth/scatterer_position_m", "non-finite coordinate"); break; }
+        for (double a : h.truth->scatterer_amplitude)
+            if (!finite(a)) { add("/truth/scatterer_amplitude", "non-finite amplitude"); break; }
     }
     return p;
 }

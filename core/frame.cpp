@@ -6,6 +6,9 @@
 #include <cstdio>
 #include <filesystem>
 #include <mutex>
+#include <stdexcept>
+#include <string>
+#include <utility>
 
 #include "core/detail/h5.h"
 #include "core/error.h"
@@ -20,6 +23,9 @@ float Frame::peak() const {
 }
 
 Frame ImageStack::frame(size_t i) const {
+    if (i >= frames || envelope.size() < frames * x_m.size() * z_m.size())
+        throw std::out_of_range("ImageStack::frame(" + std::to_string(i) + "): the stack has " + std::to_string(frames) +
+                                " frame(s)");
     Frame f;
     f.x_m = x_m;
     f.z_m = z_m;
@@ -97,6 +103,14 @@ ImageStack readImageFile(const std::string& path) {
     }
     auto e = readFloats(f.get(), "/image/envelope", 3, kMaxEnvelope, dims, err);
     if (!e) throw InputError(path, "/image/envelope", err);
+    // Pixel centres: finite and strictly increasing (x to the right, z downwards).
+    for (auto [axis, v] : {std::pair{"/image/x_m", &*x}, std::pair{"/image/z_m", &*z}}) {
+        for (size_t i = 0; i < v->size(); ++i) {
+            if (!std::isfinite((*v)[i])) throw InputError(path, axis, "non-finite pixel centre");
+            if (i > 0 && !((*v)[i] > (*v)[i - 1])) throw InputError(path, axis, "pixel centres must be strictly increasing");
+        }
+    }
+    if (dims[0] == 0) throw InputError(path, "/image/envelope", "holds no frames");
     img.x_m = *x;
     img.z_m = *z;
     img.frames = dims[0];

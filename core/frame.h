@@ -15,9 +15,11 @@ struct Frame {
     std::string capture_sha256;  ///< of the capture's bytes
     size_t frame_index = 0;      ///< which capture frame
 
-    size_t nx() const { return x_m.size(); }
-    size_t nz() const { return z_m.size(); }
+    size_t nx() const { return x_m.size(); }  ///< pixels across
+    size_t nz() const { return z_m.size(); }  ///< pixels down
+    /// Linear envelope amplitude of pixel (row iz, column ix); no bounds check.
     float at(size_t iz, size_t ix) const { return envelope[iz * nx() + ix]; }
+    /// Largest envelope amplitude (linear; 0 for an empty frame).
     float peak() const;
 };
 
@@ -28,12 +30,14 @@ struct ImageStack {
     std::vector<float> envelope;  ///< [frames][N_z][N_x]
     std::string recipe_json;
     std::string capture_sha256;
+    /// Frame i (0-based) as its own Frame; throws std::out_of_range when i >= frames.
     Frame frame(size_t i) const;
 };
 
 /// Writes atomically (temporary file then rename). Throws InputError naming the file.
 void writeImageFile(const std::string& path, const ImageStack& img);
-/// Reads and checks an image file. Throws InputError naming the file and the problem.
+/// Reads and checks an image file (shape against the axes, axes finite and strictly
+/// increasing, at least one frame). Throws InputError naming the file and the problem.
 ImageStack readImageFile(const std::string& path);
 
 }  // namespace umbra::core

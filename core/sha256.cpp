@@ -1,7 +1,9 @@
 // SPDX-License-Identifier: MIT
 #include "core/sha256.h"
 
+#include <algorithm>
 #include <cstring>
+#include <stdexcept>
 
 namespace umbra::core {
 namespace {
@@ -47,8 +49,12 @@ void Sha256::block(const uint8_t* p) {
 }
 
 void Sha256::update(const void* data, size_t n) {
-    const uint8_t* p = static_cast<const uint8_t*>(data);
+    if (finished_) throw std::logic_error("Sha256::update after digest()");
     total_ += n;
+    append(static_cast<const uint8_t*>(data), n);
+}
+
+void Sha256::append(const uint8_t* p, size_t n) {
     while (n > 0) {
         size_t take = std::min(n, size_t(64) - buf_len_);
         std::memcpy(buf_ + buf_len_, p, take);
@@ -58,18 +64,19 @@ void Sha256::update(const void* data, size_t n) {
 }
 
 std::array<uint8_t, 32> Sha256::digest() {
-    uint64_t bits = total_ * 8;
-    uint8_t pad = 0x80;
-    update(&pad, 1);
-    uint8_t zero = 0;
-    while (buf_len_ != 56) update(&zero, 1);
+    if (finished_) return digest_;
+    // FIPS 180-4 section 5.1.1: a 1 bit, zeros up to 56 mod 64 bytes, the bit length big-endian.
+    const uint64_t bits = total_ * 8;
+    const uint8_t pad = 0x80, zero = 0;
+    append(&pad, 1);
+    while (buf_len_ != 56) append(&zero, 1);
     uint8_t len[8];
     for (int i = 0; i < 8; ++i) len[i] = uint8_t(bits >> (56 - 8 * i));
-    update(len, 8);
-    std::array<uint8_t, 32> out{};
+    append(len, 8);
     for (int i = 0; i < 8; ++i)
-        for (int j = 0; j < 4; ++j) out[4 * i + j] = uint8_t(h_[i] >> (24 - 8 * j));
-    return out;
+        for (int j = 0; j < 4; ++j) digest_[4 * i + j] = uint8_t(h_[i] >> (24 - 8 * j));
+    finished_ = true;
+    return digest_;
 }
 
 std::string Sha256::hexDigest() {

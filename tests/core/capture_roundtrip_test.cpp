@@ -62,7 +62,10 @@ CaptureHeader fullHeader(TransmitKind kind, SampleType type) {
     h.medium.thickness_m = 0.025;
     h.medium.wedge = WedgeInfo{2337.0, {0.001, -0.002, 0.0125}, -0.3};
     h.scan = ScanInfo{{0.0, 0.5e-3}, {0.0, 0.02}};
-    h.truth = TruthInfo{{{0, 0, 0.01}, {2e-3, 0, 0.02}, {-1e-3, 0, 0.015}}, {1.0, 0.25, 0.5}, "array"};
+    h.truth.emplace();
+    h.truth->scatterer_position_m = {{0, 0, 0.01}, {2e-3, 0, 0.02}, {-1e-3, 0, 0.015}};
+    h.truth->scatterer_amplitude = {1.0, 0.25, 0.5};
+    h.truth->frame = "array";
     h.provenance = {{"part_id", "SYN-RT-7"}, {"operator", "test operator (synthetic)"}, {"scenario", "round trip"}};
     h.frames = 2;
     h.samples = 50;

@@ -4,8 +4,10 @@
 // recipe_json and capture_sha256), and refusal of files that are not image files.
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <stdexcept>
 
 #include "core/capture_file.h"
 #include "core/detail/h5.h"
@@ -130,6 +132,32 @@ TEST(ImageFile, ShapeAgainstAxesAndAbsurdSizesRefusedBeforeReading) {
     replaceEnvelope(path, {hsize_t(1) << 31, 3, 5});
     EXPECT_LT(fs::file_size(path), 100000u);
     EXPECT_NE(imageErrorOf(path).find("too large"), std::string::npos) << imageErrorOf(path);
+}
+
+// The contract says /image/x_m and /image/z_m are pixel centres; a file whose axes are not
+// finite and increasing cannot be drawn or measured on, so the reader refuses it by name.
+TEST(ImageFile, AxesMustBeFiniteAndIncreasing) {
+    TempDir d;
+    auto s = sampleStack();
+    s.x_m[2] = s.x_m[1];  // repeated centre
+    writeImageFile(d.file("repeat.h5"), s);
+    EXPECT_NE(imageErrorOf(d.file("repeat.h5")).find("/image/x_m: pixel centres must be strictly increasing"), std::string::npos)
+        << imageErrorOf(d.file("repeat.h5"));
+    s = sampleStack();
+    s.z_m[1] = std::nan("");
+    writeImageFile(d.file("nan.h5"), s);
+    EXPECT_NE(imageErrorOf(d.file("nan.h5")).find("/image/z_m: non-finite"), std::string::npos) << imageErrorOf(d.file("nan.h5"));
+    s = sampleStack();
+    s.frames = 0;
+    s.envelope.clear();
+    writeImageFile(d.file("empty.h5"), s);
+    EXPECT_NE(imageErrorOf(d.file("empty.h5")).find("no frames"), std::string::npos) << imageErrorOf(d.file("empty.h5"));
+}
+
+TEST(ImageFile, FrameOutsideTheStackIsRefused) {
+    const auto s = sampleStack();
+    EXPECT_NO_THROW(s.frame(s.frames - 1));
+    EXPECT_THROW(s.frame(s.frames), std::out_of_range);
 }
 
 }  // namespace

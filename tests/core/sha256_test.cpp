@@ -4,6 +4,7 @@
 // computed with Debian's sha256sum). The FIPS digests were also re-checked with sha256sum.
 #include <gtest/gtest.h>
 
+#include <stdexcept>
 #include <string>
 
 #include "core/sha256.h"
@@ -51,4 +52,14 @@ TEST(Sha256, PaddingBoundaries55_56_64Bytes) {
     EXPECT_EQ(sha(std::string(55, 'a')), "9f4390f8d30c2dd92ec9f095b65e2b9ae9b0a925a5258e241c9f1e910f734318");
     EXPECT_EQ(sha(std::string(56, 'a')), "b35439a4ac6f0948b6d6f9e3c6af0f5f590ce20f1bde7090ef7970686ec6738a");
     EXPECT_EQ(sha(std::string(64, 'a')), "ffe054fe7ae0cb6dc65c3af9b61d5209f439851db43d0ba5997337df154668eb");
+}
+
+TEST(Sha256, DigestIsStableWhenAskedTwice) {
+    // Asking twice must not pad twice: both answers are the FIPS 180-2 B.1 digest of "abc".
+    Sha256 h;
+    h.update("abc", 3);
+    const std::string expected = "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad";
+    EXPECT_EQ(h.hexDigest(), expected);
+    EXPECT_EQ(h.hexDigest(), expected);
+    EXPECT_THROW(h.update("d", 1), std::logic_error);
 }
