@@ -1,6 +1,9 @@
 // SPDX-License-Identifier: MIT
 #include "args.h"
 
+#include <cmath>
+#include <cstdlib>
+
 namespace umbra::cli {
 
 Args::Args(const std::vector<std::string>& argv, const std::vector<OptionSpec>& specs, size_t min_positional,
@@ -66,6 +69,25 @@ std::string helpText(const std::string& usage, const std::string& description, c
     }
     s += "  --help                      show this help\n";
     return s;
+}
+
+uint64_t parseWholeNumber(const std::string& opt, const std::string& v, uint64_t lo, uint64_t hi) {
+    const auto bad = [&] {
+        return UsageError("option '" + opt + "' needs a whole number from " + std::to_string(lo) + " to " + std::to_string(hi) +
+                          ", got '" + v + "'");
+    };
+    if (v.empty() || v.find_first_not_of("0123456789") != std::string::npos || v.size() > 19) throw bad();
+    const uint64_t n = std::stoull(v);
+    if (n < lo || n > hi) throw bad();
+    return n;
+}
+
+double parseFiniteNumber(const std::string& opt, const std::string& v) {
+    const char* b = v.c_str();
+    char* e = nullptr;
+    const double x = std::strtod(b, &e);
+    if (v.empty() || e == b || *e != '\0' || !std::isfinite(x)) throw UsageError("option '" + opt + "': '" + v + "' is not a number");
+    return x;
 }
 
 }  // namespace umbra::cli

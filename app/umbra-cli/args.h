@@ -1,11 +1,15 @@
 // SPDX-License-Identifier: MIT
 #pragma once
-// Tiny option parser shared by the subcommands. Unknown options are usage errors (exit 2).
+// Tiny option parser and helpers shared by the subcommands. Unknown options are usage errors
+// (exit 2; main() maps UsageError, core::SettingError and core::InputError to exit 2).
+#include <cstdint>
 #include <map>
 #include <optional>
 #include <stdexcept>
 #include <string>
 #include <vector>
+
+#include "core/error.h"
 
 namespace umbra::cli {
 
@@ -40,5 +44,19 @@ private:
 
 /// Formats a --help page: usage line, description, options.
 std::string helpText(const std::string& usage, const std::string& description, const std::vector<OptionSpec>& specs);
+
+/// Value `v` of option `opt` as a whole number in [lo, hi] (decimal digits only, no sign).
+/// Throws UsageError naming the option and the accepted range otherwise.
+uint64_t parseWholeNumber(const std::string& opt, const std::string& v, uint64_t lo, uint64_t hi);
+
+/// Value `v` of option `opt` as a finite number (unit as the option says). Throws UsageError.
+double parseFiniteNumber(const std::string& opt, const std::string& v);
+
+/// Checks the capture at `path` in a child process, so that a crash or endless loop of the
+/// HDF5 library on a damaged file becomes a reported problem instead of killing umbra-cli.
+/// Header only (deadline: 30 s, or UMBRA_HEADER_TIMEOUT_S seconds), or with `full` also
+/// every trace block as CaptureReader::validate does. Empty when the file is sound.
+/// Call it before opening a capture from the command line (in cmd_info.cpp).
+std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full);
 
 }  // namespace umbra::cli

@@ -29,7 +29,7 @@ std::string fmt(double v, int prec = 3) {
 // on some damaged files (corrupted object headers or heaps); run in a child, such a failure
 // becomes one reported problem and umbra-cli still exits 2. The child first opens and checks
 // the header, which takes milliseconds on a sound file, and reports that it got through; a
-// header that does not get through within kHeaderSeconds is given up on. With `full` the
+// header that does not get through within headerSeconds() is given up on. With `full` the
 // child then reads every trace (as validate does), which has no time limit since large
 // captures legitimately take long. Falls back to an in-process check if fork() fails.
 // The header deadline is 30 s, or UMBRA_HEADER_TIMEOUT_S seconds (1..3600) if set.
@@ -41,7 +41,9 @@ int headerSeconds() {
     return 30;
 }
 
-std::vector<core::Problem> checkIsolated(const std::string& path, bool full) {
+}  // namespace
+
+std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full) {
     auto header = [&]() -> std::vector<core::Problem> {
         try {
             core::CaptureReader r(path);
@@ -118,140 +120,126 @@ std::vector<core::Problem> checkIsolated(const std::string& path, bool full) {
     std::string why = WIFSIGNALED(status) ? "signal " + std::to_string(WTERMSIG(status)) : "status " + std::to_string(WEXITSTATUS(status));
     return {{"", "damaged HDF5 structure: reading it failed inside the HDF5 library (" + why + ")"}};
 }
-}  // namespace
 
 int cmdValidate(const Argv& argv) {
     const std::vector<OptionSpec> specs = {{"--quiet", "", "print nothing for a valid file"}};
     const char* usage = "umbra-cli validate CAPTURE";
-    try {
-        Args a(argv, specs, 1, 1);
-        if (a.help()) {
-            std::fputs(helpText(usage, "Checks CAPTURE against capture format v1: required names, shapes, units,\n"
-                                       "finite and physical numbers, index ranges, and that every trace block is\n"
-                                       "readable and finite. Exit 0 when valid; exit 2 with one line per problem\n"
-                                       "(FILE: HDF5 path: problem) otherwise.", specs).c_str(), stdout);
-            return 0;
-        }
-        const std::string path = a.positional()[0];
-        auto problems = checkIsolated(path, true);
-        if (problems.empty()) {
-            if (!a.has("--quiet")) std::printf("%s: valid capture (format v1)\n", path.c_str());
-            return 0;
-        }
-        for (auto& p : problems)
-            std::fprintf(stderr, "%s: %s%s\n", path.c_str(), p.where.empty() ? "" : (p.where + ": ").c_str(), p.what.c_str());
-        return 2;
-    } catch (const UsageError& e) {
-        std::fprintf(stderr, "umbra-cli validate: %s\n", e.what());
-        return 2;
+    Args a(argv, specs, 1, 1);
+    if (a.help()) {
+        std::fputs(helpText(usage, "Checks CAPTURE against capture format v1: required names, shapes, units,\n"
+                                   "finite and physical numbers, index ranges, and that every trace block is\n"
+                                   "readable and finite. Exit 0 when valid; exit 2 with one line per problem\n"
+                                   "(FILE: HDF5 path: problem) otherwise.", specs).c_str(), stdout);
+        return 0;
     }
+    const std::string path = a.positional()[0];
+    auto problems = checkCaptureIsolated(path, true);
+    if (problems.empty()) {
+        if (!a.has("--quiet")) std::printf("%s: valid capture (format v1)\n", path.c_str());
+        return 0;
+    }
+    for (auto& p : problems)
+        std::fprintf(stderr, "%s: %s%s\n", path.c_str(), p.where.empty() ? "" : (p.where + ": ").c_str(), p.what.c_str());
+    return 2;
 }
 
 int cmdInfo(const Argv& argv) {
     const std::vector<OptionSpec> specs = {{"--json", "", "print the summary as JSON"}};
     const char* usage = "umbra-cli info [--json] CAPTURE";
-    try {
-        Args a(argv, specs, 1, 1);
-        if (a.help()) {
-            std::fputs(helpText(usage, "Prints a readable summary of CAPTURE: title, array, transmit plan, receive\n"
-                                       "channels, sampling, trace duration and depth range in the nominal medium,\n"
-                                       "frames, file size, medium and wedge.", specs).c_str(), stdout);
-            return 0;
-        }
-        const std::string path = a.positional()[0];
-        // Header checked in a child first, so that a library crash on a damaged file is a
-        // message, not a crash; then opened here.
-        if (auto problems = checkIsolated(path, false); !problems.empty()) throw core::InputError(path, problems);
-        core::CaptureReader r(path);
-        const auto& h = r.header();
-        const double fs = h.receive.sampling_frequency_hz;
-        const double duration = double(h.samples) / fs;
-        double t0min = 1e300, t0max = -1e300;
-        for (double t : h.receive.start_time_s) { t0min = std::min(t0min, t); t0max = std::max(t0max, t); }
-        const double c = h.medium.speed_of_sound_m_s;
-        // Pulse-echo depth covered by the recorded window (two-way time, nominal medium).
-        const double zmin = std::max(0.0, t0min * c / 2), zmax = (t0max + duration) * c / 2;
-        std::error_code ec;
-        const auto bytes = std::filesystem::file_size(path, ec);
-
-        nlohmann::ordered_json j;
-        j["file"] = path;
-        j["title"] = h.title;
-        j["created_utc"] = h.created_utc;
-        j["synthetic"] = h.isSynthetic();
-        j["array"] = {{"elements", h.array.elementCount()},
-                      {"pitch_m", h.array.pitch_m()},
-                      {"element_width_m", h.array.element_width_m},
-                      {"centre_frequency_hz", h.array.centre_frequency_hz},
-                      {"fractional_bandwidth", h.array.fractional_bandwidth}};
-        if (h.array.element_height_m) j["array"]["element_height_m"] = *h.array.element_height_m;
-        j["transmit"] = {{"kind", core::toString(h.transmit.kind)}, {"count", h.transmits()}};
-        if (h.transmit.kind == core::TransmitKind::PlaneWave && !h.transmit.angle_rad.empty()) {
-            auto [lo, hi] = std::minmax_element(h.transmit.angle_rad.begin(), h.transmit.angle_rad.end());
-            j["transmit"]["angle_min_deg"] = *lo * 180 / M_PI;
-            j["transmit"]["angle_max_deg"] = *hi * 180 / M_PI;
-        }
-        j["receive"] = {{"channels", h.receives()}, {"sampling_frequency_hz", fs}};
-        j["traces"] = {{"samples", h.samples}, {"duration_s", duration}, {"sample_type", h.sample_type == core::SampleType::Int16 ? "int16" : "float32"},
-                       {"scale", h.rf_scale}, {"units", h.rf_units}, {"depth_min_m", zmin}, {"depth_max_m", zmax}};
-        j["frames"] = h.frames;
-        if (h.scan && !h.scan->position_m.empty())
-            j["scan"] = {{"position_first_m", h.scan->position_m.front()}, {"position_last_m", h.scan->position_m.back()}};
-        j["file_size_bytes"] = bytes;
-        j["medium"] = {{"speed_of_sound_m_s", c}};
-        if (h.medium.shear_speed_m_s) j["medium"]["shear_speed_m_s"] = *h.medium.shear_speed_m_s;
-        if (h.medium.attenuation_db_per_cm_mhz) j["medium"]["attenuation_db_per_cm_mhz"] = *h.medium.attenuation_db_per_cm_mhz;
-        if (h.medium.thickness_m) j["medium"]["thickness_m"] = *h.medium.thickness_m;
-        if (h.medium.wedge)
-            j["wedge"] = {{"speed_of_sound_m_s", h.medium.wedge->speed_of_sound_m_s},
-                          {"surface_origin_m", h.medium.wedge->surface_origin_m},
-                          {"surface_tilt_rad", h.medium.wedge->surface_tilt_rad}};
-        else
-            j["wedge"] = nullptr;
-        if (!h.provenance.empty()) j["provenance"] = h.provenance;
-
-        if (a.has("--json")) {
-            std::printf("%s\n", j.dump(2).c_str());
-            return 0;
-        }
-        std::ostringstream o;
-        o << "Capture      " << path << (h.isSynthetic() ? "  (synthetic data)" : "") << "\n";
-        o << "Title        " << h.title << "\n";
-        o << "Created      " << h.created_utc << "\n";
-        o << "Array        " << h.array.elementCount() << " elements, pitch " << fmt(h.array.pitch_m() * 1e3) << " mm, width "
-          << fmt(h.array.element_width_m * 1e3) << " mm, " << fmt(h.array.centre_frequency_hz / 1e6, 2) << " MHz, bandwidth "
-          << fmt(h.array.fractional_bandwidth * 100, 0) << " % (-6 dB)\n";
-        o << "Transmit     " << core::toString(h.transmit.kind) << ", " << h.transmits() << " events";
-        if (j["transmit"].contains("angle_min_deg"))
-            o << " (" << fmt(j["transmit"]["angle_min_deg"].get<double>(), 1) << " to " << fmt(j["transmit"]["angle_max_deg"].get<double>(), 1) << " deg)";
-        o << "\nReceive      " << h.receives() << " channels\n";
-        o << "Sampling     " << fmt(fs / 1e6, 2) << " MHz, " << h.samples << " samples (" << fmt(duration * 1e6, 2) << " us), "
-          << (h.sample_type == core::SampleType::Int16 ? "int16" : "float32") << ", scale " << h.rf_scale
-          << (h.rf_units.empty() ? "" : " " + h.rf_units) << "\n";
-        o << "Depth range  " << fmt(zmin * 1e3, 1) << " to " << fmt(zmax * 1e3, 1) << " mm (pulse-echo at " << fmt(c, 0) << " m/s)\n";
-        o << "Frames       " << h.frames;
-        if (j.contains("scan"))
-            o << " (scan " << fmt(h.scan->position_m.front() * 1e3, 1) << " to " << fmt(h.scan->position_m.back() * 1e3, 1) << " mm)";
-        o << "\nFile size    " << fmt(double(bytes) / (1024.0 * 1024.0), 2) << " MiB\n";
-        o << "Medium       " << fmt(c, 0) << " m/s";
-        if (h.medium.shear_speed_m_s) o << ", shear " << fmt(*h.medium.shear_speed_m_s, 0) << " m/s";
-        if (h.medium.attenuation_db_per_cm_mhz) o << ", " << fmt(*h.medium.attenuation_db_per_cm_mhz, 2) << " dB/cm/MHz";
-        if (h.medium.thickness_m) o << ", thickness " << fmt(*h.medium.thickness_m * 1e3, 1) << " mm";
-        o << "\nWedge        ";
-        if (h.medium.wedge)
-            o << fmt(h.medium.wedge->speed_of_sound_m_s, 0) << " m/s, tilt " << fmt(h.medium.wedge->surface_tilt_rad * 180 / M_PI, 1) << " deg\n";
-        else
-            o << "none (array on the surface)\n";
-        for (auto& [k, v] : h.provenance) o << "Provenance   " << k << ": " << v << "\n";
-        std::fputs(o.str().c_str(), stdout);
+    Args a(argv, specs, 1, 1);
+    if (a.help()) {
+        std::fputs(helpText(usage, "Prints a readable summary of CAPTURE: title, array, transmit plan, receive\n"
+                                   "channels, sampling, trace duration and depth range in the nominal medium,\n"
+                                   "frames, file size, medium and wedge.", specs).c_str(), stdout);
         return 0;
-    } catch (const UsageError& e) {
-        std::fprintf(stderr, "umbra-cli info: %s\n", e.what());
-        return 2;
-    } catch (const core::InputError& e) {
-        std::fprintf(stderr, "%s\n", e.what());
-        return 2;
     }
+    const std::string path = a.positional()[0];
+    // Header checked in a child first, so that a library crash on a damaged file is a
+    // message, not a crash; then opened here.
+    if (auto problems = checkCaptureIsolated(path, false); !problems.empty()) throw core::InputError(path, problems);
+    core::CaptureReader r(path);
+    const auto& h = r.header();
+    const double fs = h.receive.sampling_frequency_hz;
+    const double duration = double(h.samples) / fs;
+    double t0min = 1e300, t0max = -1e300;
+    for (double t : h.receive.start_time_s) { t0min = std::min(t0min, t); t0max = std::max(t0max, t); }
+    const double c = h.medium.speed_of_sound_m_s;
+    // Pulse-echo depth covered by the recorded window (two-way time, nominal medium).
+    const double zmin = std::max(0.0, t0min * c / 2), zmax = (t0max + duration) * c / 2;
+    std::error_code ec;
+    const auto bytes = std::filesystem::file_size(path, ec);
+
+    nlohmann::ordered_json j;
+    j["file"] = path;
+    j["title"] = h.title;
+    j["created_utc"] = h.created_utc;
+    j["synthetic"] = h.isSynthetic();
+    j["array"] = {{"elements", h.array.elementCount()},
+                  {"pitch_m", h.array.pitch_m()},
+                  {"element_width_m", h.array.element_width_m},
+                  {"centre_frequency_hz", h.array.centre_frequency_hz},
+                  {"fractional_bandwidth", h.array.fractional_bandwidth}};
+    if (h.array.element_height_m) j["array"]["element_height_m"] = *h.array.element_height_m;
+    j["transmit"] = {{"kind", core::toString(h.transmit.kind)}, {"count", h.transmits()}};
+    if (h.transmit.kind == core::TransmitKind::PlaneWave && !h.transmit.angle_rad.empty()) {
+        auto [lo, hi] = std::minmax_element(h.transmit.angle_rad.begin(), h.transmit.angle_rad.end());
+        j["transmit"]["angle_min_deg"] = *lo * 180 / M_PI;
+        j["transmit"]["angle_max_deg"] = *hi * 180 / M_PI;
+    }
+    j["receive"] = {{"channels", h.receives()}, {"sampling_frequency_hz", fs}};
+    j["traces"] = {{"samples", h.samples}, {"duration_s", duration}, {"sample_type", h.sample_type == core::SampleType::Int16 ? "int16" : "float32"},
+                   {"scale", h.rf_scale}, {"units", h.rf_units}, {"depth_min_m", zmin}, {"depth_max_m", zmax}};
+    j["frames"] = h.frames;
+    if (h.scan && !h.scan->position_m.empty())
+        j["scan"] = {{"position_first_m", h.scan->position_m.front()}, {"position_last_m", h.scan->position_m.back()}};
+    j["file_size_bytes"] = bytes;
+    j["medium"] = {{"speed_of_sound_m_s", c}};
+    if (h.medium.shear_speed_m_s) j["medium"]["shear_speed_m_s"] = *h.medium.shear_speed_m_s;
+    if (h.medium.attenuation_db_per_cm_mhz) j["medium"]["attenuation_db_per_cm_mhz"] = *h.medium.attenuation_db_per_cm_mhz;
+    if (h.medium.thickness_m) j["medium"]["thickness_m"] = *h.medium.thickness_m;
+    if (h.medium.wedge)
+        j["wedge"] = {{"speed_of_sound_m_s", h.medium.wedge->speed_of_sound_m_s},
+                      {"surface_origin_m", h.medium.wedge->surface_origin_m},
+                      {"surface_tilt_rad", h.medium.wedge->surface_tilt_rad}};
+    else
+        j["wedge"] = nullptr;
+    if (!h.provenance.empty()) j["provenance"] = h.provenance;
+
+    if (a.has("--json")) {
+        std::printf("%s\n", j.dump(2).c_str());
+        return 0;
+    }
+    std::ostringstream o;
+    o << "Capture      " << path << (h.isSynthetic() ? "  (synthetic data)" : "") << "\n";
+    o << "Title        " << h.title << "\n";
+    o << "Created      " << h.created_utc << "\n";
+    o << "Array        " << h.array.elementCount() << " elements, pitch " << fmt(h.array.pitch_m() * 1e3) << " mm, width "
+      << fmt(h.array.element_width_m * 1e3) << " mm, " << fmt(h.array.centre_frequency_hz / 1e6, 2) << " MHz, bandwidth "
+      << fmt(h.array.fractional_bandwidth * 100, 0) << " % (-6 dB)\n";
+    o << "Transmit     " << core::toString(h.transmit.kind) << ", " << h.transmits() << " events";
+    if (j["transmit"].contains("angle_min_deg"))
+        o << " (" << fmt(j["transmit"]["angle_min_deg"].get<double>(), 1) << " to " << fmt(j["transmit"]["angle_max_deg"].get<double>(), 1) << " deg)";
+    o << "\nReceive      " << h.receives() << " channels\n";
+    o << "Sampling     " << fmt(fs / 1e6, 2) << " MHz, " << h.samples << " samples (" << fmt(duration * 1e6, 2) << " us), "
+      << (h.sample_type == core::SampleType::Int16 ? "int16" : "float32") << ", scale " << h.rf_scale
+      << (h.rf_units.empty() ? "" : " " + h.rf_units) << "\n";
+    o << "Depth range  " << fmt(zmin * 1e3, 1) << " to " << fmt(zmax * 1e3, 1) << " mm (pulse-echo at " << fmt(c, 0) << " m/s)\n";
+    o << "Frames       " << h.frames;
+    if (j.contains("scan"))
+        o << " (scan " << fmt(h.scan->position_m.front() * 1e3, 1) << " to " << fmt(h.scan->position_m.back() * 1e3, 1) << " mm)";
+    o << "\nFile size    " << fmt(double(bytes) / (1024.0 * 1024.0), 2) << " MiB\n";
+    o << "Medium       " << fmt(c, 0) << " m/s";
+    if (h.medium.shear_speed_m_s) o << ", shear " << fmt(*h.medium.shear_speed_m_s, 0) << " m/s";
+    if (h.medium.attenuation_db_per_cm_mhz) o << ", " << fmt(*h.medium.attenuation_db_per_cm_mhz, 2) << " dB/cm/MHz";
+    if (h.medium.thickness_m) o << ", thickness " << fmt(*h.medium.thickness_m * 1e3, 1) << " mm";
+    o << "\nWedge        ";
+    if (h.medium.wedge)
+        o << fmt(h.medium.wedge->speed_of_sound_m_s, 0) << " m/s, tilt " << fmt(h.medium.wedge->surface_tilt_rad * 180 / M_PI, 1) << " deg\n";
+    else
+        o << "none (array on the surface)\n";
+    for (auto& [k, v] : h.provenance) o << "Provenance   " << k << ": " << v << "\n";
+    std::fputs(o.str().c_str(), stdout);
+    return 0;
 }
 
 }  // namespace umbra::cli

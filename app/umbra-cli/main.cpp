@@ -4,7 +4,9 @@
 #include <exception>
 #include <string>
 
+#include "args.h"
 #include "commands.h"
+#include "core/error.h"
 
 namespace umbra::cli {
 const std::vector<Command>& commands() {
@@ -42,8 +44,19 @@ int main(int argc, char** argv) {
     Argv rest(argv + 2, argv + argc);
     for (auto& c : commands())
         if (cmd == c.name) {
+            // Exit codes (commands.h): 2 for usage errors, bad settings and bad input files;
+            // 1 for any other failure. Input errors already name the file.
             try {
                 return c.run(rest);
+            } catch (const UsageError& e) {
+                std::fprintf(stderr, "umbra-cli %s: %s\n", c.name, e.what());
+                return 2;
+            } catch (const umbra::core::SettingError& e) {
+                std::fprintf(stderr, "umbra-cli %s: bad setting: %s\n", c.name, e.what());
+                return 2;
+            } catch (const umbra::core::InputError& e) {
+                std::fprintf(stderr, "%s\n", e.what());
+                return 2;
             } catch (const std::exception& e) {
                 std::fprintf(stderr, "umbra-cli %s: %s\n", c.name, e.what());
                 return 1;
