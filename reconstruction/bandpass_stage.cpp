@@ -19,10 +19,10 @@ core::StageSpec bandpassSpec() {
             "Band-pass filter",
             "Optional zero-phase band-pass filter applied to every trace before beamforming.",
             {flagParam("enabled", "Band-pass on", "Apply the band-pass filter to the traces (off: traces used as recorded).", false),
-             realParam("low_mhz", "Low edge", "Lower -6 dB edge in MHz; 0 = centre frequency x (1 - fractional bandwidth).", "MHz", 0,
-                       1000, 0, false, 0.1),
-             realParam("high_mhz", "High edge", "Upper -6 dB edge in MHz; 0 = centre frequency x (1 + fractional bandwidth).", "MHz",
-                       0, 1000, 0, false, 0.1)}};
+             modalRealParam("low_mhz", "Low edge", "Lower -6 dB edge in MHz; 0 = centre frequency x (1 - fractional bandwidth).",
+                            "MHz", 0, 1000, "automatic", 0.1),
+             modalRealParam("high_mhz", "High edge", "Upper -6 dB edge in MHz; 0 = centre frequency x (1 + fractional bandwidth).",
+                            "MHz", 0, 1000, "automatic", 0.1)}};
 }
 
 BandpassParams bandpassParams(const core::Recipe& r) {

@@ -16,8 +16,9 @@ core::StageSpec delayModelSpec() {
             "Travel times from the array to each pixel (homogeneous medium).",
             {choiceParam("model", "Medium model", "Travel-time model: homogeneous medium at one speed of sound.", {"homogeneous"},
                          "homogeneous"),
-             realParam("speed_of_sound_m_s", "Speed of sound",
-                       "Speed of sound in the imaged medium, m/s; 0 = the capture's medium speed.", "m/s", 0, 20000, 0, false, 10)}};
+             modalRealParam("speed_of_sound_m_s", "Speed of sound",
+                            "Speed of sound in the imaged medium, m/s; 0 = the capture's medium speed.", "m/s", 0, 20000, "from capture",
+                            10)}};
 }
 
 DelayModelParams delayModelParams(const core::Recipe& r) {

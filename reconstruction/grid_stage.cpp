@@ -12,15 +12,22 @@ core::StageSpec gridSpec() {
     const char* u = "mm";
     return {"grid",
             "Image grid",
-            "Region and pixel step of the image; 0/0 = automatic region, step 0 = automatic (amplitude fidelity within 2 dB).",
-            {realParam("x_min_mm", "x min", "Left edge of the region, mm (x_min = x_max = 0: the array's aperture).", u, -10000, 10000, 0,
-                       false, 1),
-             realParam("x_max_mm", "x max", "Right edge of the region, mm.", u, -10000, 10000, 0, false, 1),
-             realParam("z_min_mm", "z min", "Top of the region (depth), mm (z_min = z_max = 0: the recorded depth range).", u, -10000,
-                       10000, 0, false, 1),
-             realParam("z_max_mm", "z max", "Bottom of the region (depth), mm.", u, -10000, 10000, 0, false, 1),
-             realParam("step_mm", "Pixel step", "Pixel size, mm; 0 = automatic (worst-case point loss within 2 dB).", u, 0, 1000, 0, false,
-                       0.01)}};
+            "Region and pixel step of the image; 0/0 = automatic region, step 0 = automatic (worst-case point loss within the "
+            "amplitude fidelity target).",
+            {modalRealParam("x_min_mm", "x min", "Left edge of the region, mm (x_min = x_max = 0: the array's aperture).", u, -10000,
+                            10000, "automatic if x max is 0 too", 1),
+             modalRealParam("x_max_mm", "x max", "Right edge of the region, mm.", u, -10000, 10000, "automatic if x min is 0 too", 1),
+             modalRealParam("z_min_mm", "z min",
+                            "Top of the region (depth), mm (z_min = z_max = 0: from 0 to the recorded depth, or to 1.15 x the "
+                            "medium's thickness when that is recorded and shorter).",
+                            u, -10000, 10000, "automatic if z max is 0 too", 1),
+             modalRealParam("z_max_mm", "z max", "Bottom of the region (depth), mm.", u, -10000, 10000, "automatic if z min is 0 too", 1),
+             modalRealParam("step_mm", "Pixel step", "Pixel size, mm; 0 = automatic (worst-case point loss within the fidelity target).", u,
+                            0, 1000, "automatic", 0.01),
+             realParam("max_loss_db", "Amplitude fidelity target",
+                       "Worst-case loss, dB, of a point reflector lying between pixels, used to choose the automatic step (the "
+                       "estimate is approximate: the default keeps a margin under the 2 dB limit of common practice).",
+                       "dB", 0.1, 2.0, kDefaultMaxLossDb, false, 0.1)}};
 }
 
 GridParams gridParams(const core::Recipe& r) {
@@ -30,6 +37,7 @@ GridParams gridParams(const core::Recipe& r) {
     p.z_min_mm = r.number("grid.z_min_mm");
     p.z_max_mm = r.number("grid.z_max_mm");
     p.step_mm = r.number("grid.step_mm");
+    p.max_loss_db = r.number("grid.max_loss_db");
     return p;
 }
 

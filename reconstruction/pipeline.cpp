@@ -70,6 +70,12 @@ Extent autoExtent(const core::CaptureHeader& h, double c) {
     const double fs = h.receive.sampling_frequency_hz;
     e.z0 = std::max(0.0, t0 * c / 2);
     e.z1 = (t1 + double(h.samples) / (fs > 0 ? fs : 1)) * c / 2;
+    // A plate or block of known thickness: from the surface to a margin below the back wall.
+    if (h.medium.thickness_m && *h.medium.thickness_m > 0 && std::isfinite(*h.medium.thickness_m)) {
+        const double zt = kThicknessMargin * *h.medium.thickness_m;
+        e.z0 = 0;
+        if (zt < e.z1) e.z1 = zt;
+    }
     return e;
 }
 
@@ -119,12 +125,14 @@ Grid resolveGrid(const core::CaptureHeader& h, const core::Recipe& r) {
         throw core::SettingError("grid: empty region: z_max (" + std::to_string(grid.z_max_m * 1e3) + " mm) must exceed z_min (" +
                                  std::to_string(grid.z_min_m * 1e3) + " mm)");
     if (g.step_mm < 0) throw core::SettingError("grid.step_mm must not be negative (0 = automatic)");
+    if (!(g.max_loss_db >= 0.1 && g.max_loss_db <= kFidelityLimitDb))
+        throw core::SettingError("grid.max_loss_db = " + std::to_string(g.max_loss_db) + ": the fidelity target must be within 0.1 to 2 dB");
     if (g.step_mm > 0) {
         grid.step_m = g.step_mm * 1e-3;
     } else {
         if (!(h.array.centre_frequency_hz > 0)) throw core::SettingError("grid: automatic step needs the array's centre frequency");
-        const double s = stepForLossDb(widthsFor(h, r, grid.z_min_m), kFidelityLimitDb);
-        grid.step_m = std::floor(s * 1e6) / 1e6;  // down to whole micrometres: loss stays within the limit
+        const double s = stepForLossDb(widthsFor(h, r, grid.z_min_m), g.max_loss_db);
+        grid.step_m = std::floor(s * 1e6) / 1e6;  // down to whole micrometres: loss stays within the target
         if (grid.step_m <= 0) grid.step_m = s;
     }
     const double px = (std::floor((grid.x_max_m - grid.x_min_m) / grid.step_m) + 1) *

@@ -34,8 +34,9 @@ struct Grid {
 };
 
 /// The grid the recipe asks for; where the recipe leaves the region at "auto" (0 span), the
-/// array's aperture and the recorded depth range; where the step is "auto", a pixel that
-/// keeps amplitude fidelity within 2 dB. Throws core::SettingError for an empty grid, a
+/// array's aperture and the recorded depth range (0 to min(recorded depth, 1.15 x thickness)
+/// when the medium's thickness is recorded); where the step is "auto", a pixel that keeps the
+/// estimated worst-case point loss within grid.max_loss_db (default 1 dB). Throws core::SettingError for an empty grid, a
 /// non-positive step or more pixels than the limit.
 Grid resolveGrid(const core::CaptureHeader& h, const core::Recipe& r);
 

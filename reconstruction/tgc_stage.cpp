@@ -17,11 +17,11 @@ core::StageSpec tgcSpec() {
             "Gain increasing with depth: round-trip attenuation 2 alpha f z, or a user curve of dB versus depth.",
             {choiceParam("mode", "TCG mode", "off, attenuation (round trip 2 alpha f z dB) or curve (dB versus depth points).",
                          {"off", "attenuation", "curve"}, "attenuation", true),
-             realParam("attenuation_db_per_cm_mhz", "Attenuation",
-                       "One-way attenuation alpha in dB/cm/MHz; 0 = the capture's medium value (none recorded: no gain).",
-                       "dB/cm/MHz", 0, 100, 0, true, 0.05),
-             realParam("frequency_mhz", "Frequency", "Frequency f for the attenuation gain, MHz; 0 = the array's centre frequency.",
-                       "MHz", 0, 1000, 0, true, 0.1),
+             modalRealParam("attenuation_db_per_cm_mhz", "Attenuation",
+                            "One-way attenuation alpha in dB/cm/MHz; 0 = the capture's medium value (none recorded: no gain).",
+                            "dB/cm/MHz", 0, 100, "from capture", 0.05, true),
+             modalRealParam("frequency_mhz", "Frequency", "Frequency f for the attenuation gain, MHz; 0 = the array's centre frequency.",
+                            "MHz", 0, 1000, "from capture", 0.1, true),
              textParam("curve", "Gain curve", "Depth mm : gain dB points, e.g. 0:0,10:6,20:12; linear between, held beyond.",
                        "mm:dB", "0:0", true)}};
 }

@@ -108,8 +108,9 @@ int cmdReconstruct(const Argv& argv) {
             for (auto& st : recipe.stages())
                 for (auto& p : st.params) {
                     const std::string key = st.name + "." + p.name;
-                    std::printf("%-40s default %-12s %s%s\n", key.c_str(), recipe.valueText(key).c_str(), p.description.c_str(),
-                                p.display_only ? " [display]" : "");
+                    const std::string zero = p.zero_means.empty() ? "" : " [0 = " + p.zero_means + "]";
+                    std::printf("%-40s default %-12s %s%s%s\n", key.c_str(), recipe.valueText(key).c_str(), p.description.c_str(),
+                                zero.c_str(), p.display_only ? " [display]" : "");
                 }
             return 0;
         }

@@ -25,6 +25,15 @@ inline core::ParamSpec realParam(std::string name, std::string label, std::strin
     return p;
 }
 
+/// realParam whose value 0 is a mode, not a value: `zero_means` is what a user sees for 0
+/// (e.g. "automatic", "from capture"); min must be 0 or below.
+inline core::ParamSpec modalRealParam(std::string name, std::string label, std::string description, std::string unit, double min,
+                                      double max, std::string zero_means, double step = 0, bool display_only = false) {
+    auto p = realParam(std::move(name), std::move(label), std::move(description), std::move(unit), min, max, 0, display_only, step);
+    p.zero_means = std::move(zero_means);
+    return p;
+}
+
 /// An Integer parameter in [min, max], default `def`.
 inline core::ParamSpec intParam(std::string name, std::string label, std::string description, double min, double max, double def,
                                 bool display_only = false) {
