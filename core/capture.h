@@ -70,6 +70,9 @@ struct TruthInfo {
     std::vector<Vec3> scatterer_position_m;
     std::vector<double> scatterer_amplitude;
     std::string frame;  ///< value of attr `frame` if present
+    /// Optional attr `regions_json`: JSON list of the extended structures of a simulated scene
+    /// (kind, centre, axes or diameter, angle, echogenicity dB); empty when absent.
+    std::string regions_json = {};
 };
 
 /// Everything in a capture but the traces.

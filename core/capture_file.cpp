@@ -204,6 +204,8 @@ void parseHeader(hid_t file, HeaderParse& out) {
             if (!v) add("/truth/scatterer_amplitude", err); else t.scatterer_amplitude = *v;
         }
         if (auto f = readStringAttr(g.get(), "frame", err)) t.frame = *f;
+        if (auto rj = readStringAttr(g.get(), "regions_json", err)) t.regions_json = *rj;
+        else if (!err.empty()) add("/truth@regions_json", err + " (expected a string holding a JSON list of regions)");
         h.truth = t;
     }
     if (Hid g = openGroup(file, "/provenance", false, P); g) {
@@ -422,6 +424,7 @@ CaptureWriter::CaptureWriter(const std::string& path, const CaptureHeader& heade
             writeDoubles(g.get(), "scatterer_position_m", v.data(), {h.truth->scatterer_position_m.size(), 3});
             writeDoubles(g.get(), "scatterer_amplitude", h.truth->scatterer_amplitude.data(), {h.truth->scatterer_amplitude.size()});
             if (!h.truth->frame.empty()) writeStringAttr(g.get(), "frame", h.truth->frame);
+            if (!h.truth->regions_json.empty()) writeStringAttr(g.get(), "regions_json", h.truth->regions_json);
         }
         if (!h.provenance.empty()) {
             Hid g = createGroup(f, "provenance");

@@ -2,6 +2,7 @@
 #include "reconstruction/simulate/scatterers.h"
 
 #include <cmath>
+#include <nlohmann/json.hpp>
 
 #include "reconstruction/simulate/random.h"
 
@@ -86,6 +87,41 @@ FrameContent frameContent(const Scene& s, size_t f, const std::vector<PointSourc
     return c;
 }
 
+std::string regionsJson(const Scene& s) {
+    if (!s.speckle.enabled || s.speckle.regions.empty()) return {};
+    nlohmann::json list = nlohmann::json::array();
+    for (auto& r : s.speckle.regions) {
+        nlohmann::json j;
+        if (!r.label.empty()) j["label"] = r.label;
+        switch (r.shape) {
+            case RegionShape::Circle:
+                j["kind"] = "circle";
+                j["centre_m"] = {r.cx_m, r.cz_m};
+                j["diameter_m"] = 2 * r.a_m;
+                break;
+            case RegionShape::Ellipse:
+                j["kind"] = "ellipse";
+                j["centre_m"] = {r.cx_m, r.cz_m};
+                j["axes_m"] = {2 * r.a_m, 2 * r.b_m};
+                j["angle_deg"] = r.angle_rad * 180 / M_PI;
+                break;
+            case RegionShape::Tube:
+                j["kind"] = "tube";
+                j["centre_m"] = {(r.x0_m + r.x1_m) / 2, (r.z0_m + r.z1_m) / 2};
+                j["start_m"] = {r.x0_m, r.z0_m};
+                j["end_m"] = {r.x1_m, r.z1_m};
+                j["diameter_m"] = 2 * r.radius_m;
+                j["angle_deg"] = std::atan2(r.z1_m - r.z0_m, r.x1_m - r.x0_m) * 180 / M_PI;
+                break;
+        }
+        j["anechoic"] = r.anechoic;
+        if (r.anechoic) j["echogenicity_db"] = nullptr;
+        else j["echogenicity_db"] = r.contrast_db;
+        list.push_back(std::move(j));
+    }
+    return list.dump();
+}
+
 core::TruthInfo makeTruth(const Scene& s) {
     core::TruthInfo t;
     const double lambda = wavelengthOf(s);
@@ -108,6 +144,7 @@ core::TruthInfo makeTruth(const Scene& s) {
         case FrameKind::Cine: t.frame = "array frame, positions at cine frame 0"; break;
         default: t.frame = "array frame"; break;
     }
+    t.regions_json = regionsJson(s);
     return t;
 }
 

@@ -4,6 +4,7 @@
 // reflectors, planar flaws as dense lines with tips, speckle) and side-drilled holes, with
 // the frame's elevation weighting (encoded scans) or rigid displacement (cine) applied.
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include "core/capture.h"
@@ -45,7 +46,16 @@ std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double wavelength_m);
 FrameContent frameContent(const Scene& s, size_t f, const std::vector<PointSource>& speckle);
 
 /// /truth of the capture: points, planar-flaw points (tips included) and hole centres, in the
-/// array frame at scan position 0 / cine frame 0. Speckle and the back wall are not listed.
+/// array frame at scan position 0 / cine frame 0. Speckle scatterers and the back wall are not
+/// listed; the speckle regions (cysts, ellipses, tubes) go into regions_json (see regionsJson).
 core::TruthInfo makeTruth(const Scene& s);
+
+/// The scene's speckle regions as a JSON list (empty string when there are none), one object
+/// each: "label" (if any), "kind" (circle | ellipse | tube), "centre_m" [x, z] m, circle
+/// "diameter_m" m, ellipse "axes_m" [width, height] full lengths m and "angle_deg" (from +x
+/// towards +z), tube "start_m"/"end_m" [x, z] m of its axis, "diameter_m" and "angle_deg" of
+/// the axis; "anechoic" (bool) and "echogenicity_db" (contrast to the background in dB, null
+/// when anechoic).
+std::string regionsJson(const Scene& s);
 
 }  // namespace umbra::recon::sim

@@ -240,7 +240,7 @@ core::CaptureHeader makeHeader(const Scene& s, const SimOptions& o) {
         h.scan = sc;
     }
     auto truth = makeTruth(s);
-    if (!truth.scatterer_position_m.empty()) h.truth = truth;
+    if (!truth.scatterer_position_m.empty() || !truth.regions_json.empty()) h.truth = truth;
     h.provenance["scenario"] = s.scenario;
     h.provenance["data"] = "synthetic demonstration data";
     h.provenance["simulator"] = simulatorVersion();
