@@ -305,6 +305,21 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
     json fs_ = json::array();
     for (const auto& f : doc.findings) fs_.push_back(findingJson(f));
     j["findings"] = fs_;
+    if (const auto& a = doc.amplitude_reference) {
+        json aj = json::object();
+        aj["label"] = a->label;
+        aj["amplitude"] = a->amplitude;
+        aj["capture_sha256"] = a->capture_sha256;
+        try {
+            aj["recipe"] = a->recipe_json.empty() ? json(nullptr) : json::parse(a->recipe_json);
+        } catch (const json::exception& e) {
+            throw SettingError(std::string("amplitude reference: its recipe is not valid JSON: ") + e.what());
+        }
+        aj["frame"] = a->frame;
+        aj["x_mm"] = a->x_mm;
+        aj["z_mm"] = a->z_mm;
+        j["amplitude_reference"] = aj;
+    }
     // Invalid UTF-8 in a user text is replaced (U+FFFD) rather than failing the save.
     return j.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
 }
@@ -378,6 +393,23 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
     if (const json* fj = r.array(j, "", "findings"))
         for (size_t i = 0; i < fj->size(); ++i)
             doc.findings.push_back(readFinding(r, (*fj)[i], Reader::index("findings", i)));
+    if (j.contains("amplitude_reference") && !j["amplitude_reference"].is_null()) {
+        const std::string p = "amplitude_reference";
+        const json& aj = r.object(j[p], p);
+        AmplitudeReference a;
+        a.label = r.text(aj, p, "label");
+        a.amplitude = r.numberValue(r.required(aj, p, "amplitude"), Reader::key(p, "amplitude"));
+        if (!(a.amplitude > 0)) r.fail(Reader::key(p, "amplitude"), "must be positive");
+        a.capture_sha256 = r.text(aj, p, "capture_sha256");
+        if (aj.contains("recipe") && !aj["recipe"].is_null()) {
+            if (!aj["recipe"].is_object()) r.fail(Reader::key(p, "recipe"), "must be a JSON object or null");
+            a.recipe_json = aj["recipe"].dump(2);
+        }
+        a.frame = r.count(aj, p, "frame");
+        a.x_mm = r.number(aj, p, "x_mm", 0.0);
+        a.z_mm = r.number(aj, p, "z_mm", 0.0);
+        doc.amplitude_reference = a;
+    }
     return doc;
 }
 

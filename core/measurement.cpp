@@ -80,6 +80,7 @@ size_t pointCount(MeasurementKind kind) {
     case MeasurementKind::DepthMarker: return 1;
     case MeasurementKind::ExtentBox: return 2;
     case MeasurementKind::Ellipse: return 3;
+    case MeasurementKind::DropSizing: return 2;
     }
     return 0;
 }
@@ -146,6 +147,7 @@ std::vector<Quantity> evaluate(const Measurement& m, const UncertaintyModel& u) 
         out.push_back(make("depth", p[0].z, "mm"));
         break;
     case MeasurementKind::ExtentBox:
+    case MeasurementKind::DropSizing:
         out.push_back(make("length", detail::abs(p[1].x - p[0].x), "mm"));
         out.push_back(make("height", detail::abs(p[1].z - p[0].z), "mm"));
         break;
@@ -171,13 +173,14 @@ std::string kindName(MeasurementKind kind) {
     case MeasurementKind::DepthMarker: return "depth marker";
     case MeasurementKind::ExtentBox: return "extent box";
     case MeasurementKind::Ellipse: return "ellipse";
+    case MeasurementKind::DropSizing: return "-6 dB sizing";
     }
     return "unknown";
 }
 
 std::optional<MeasurementKind> kindFromName(const std::string& name) {
     for (auto k : {MeasurementKind::Caliper, MeasurementKind::DepthMarker, MeasurementKind::ExtentBox,
-                   MeasurementKind::Ellipse})
+                   MeasurementKind::Ellipse, MeasurementKind::DropSizing})
         if (kindName(k) == name) return k;
     return std::nullopt;
 }

@@ -15,7 +15,9 @@
 
 namespace umbra::core {
 
-enum class MeasurementKind { Caliper, DepthMarker, ExtentBox, Ellipse };
+/// DropSizing: a box around an indication, sized at −6 dB from its peak (core/drop_sizing.h; its
+/// quantities need the image, so evaluate() gives only the box's length and height).
+enum class MeasurementKind { Caliper, DepthMarker, ExtentBox, Ellipse, DropSizing };
 
 /// A point in the image plane, mm. z is depth (down).
 struct PointMm {

@@ -4,6 +4,8 @@
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
 # `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export}.png.
+# umbra writes each PNG under a temporary name and renames it; this script then checks that every
+# PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 build=${1:-build}
@@ -14,16 +16,56 @@ out=docs/screenshots
 [ -f "$samples/weld_coupon.h5" ] || { echo "screenshots: $samples/weld_coupon.h5 missing (cmake --build $build --target samples)" >&2; exit 1; }
 command -v xvfb-run >/dev/null || { echo "screenshots: xvfb-run not found (apt-get install xvfb)" >&2; exit 1; }
 mkdir -p "$out"
-run() { xvfb-run -a -s "-screen 0 1600x1000x24" "$umbra" "$@"; }
+# Each run gets its own X server number (-a) and its own settings/data folders, so runs never
+# share state (auto-save recovery, window geometry) with each other or with the user.
+run() {
+  local home; home=$(mktemp -d)
+  XDG_CONFIG_HOME="$home/config" XDG_DATA_HOME="$home/data" xvfb-run -a -s "-screen 0 1600x1000x24" "$umbra" "$@"
+  rm -rf "$home"
+}
+weld_set=(--set grid.step_mm=0.08 --set grid.z_min_mm=0 --set grid.z_max_mm=24)
 
-# Weld coupon: frame 11 (y = 0 mm) where the fusion-face reflector is, a finer grid, the demo
-# annotation (extent box at -6 dB, depth marker, caliper, finding F1), and an exported PNG.
-run --demo "$samples" --frame 10 --set grid.step_mm=0.08 --set grid.z_min_mm=0 --set grid.z_max_mm=24 --demo-annotate \
-    --screenshot "$out/weld.png" --export "$out/weld-export.png" --timings
-# Phantom P-2 (second capture of the demo case), annotated the same way.
+# Weld coupon, frame 11 (y = 0 mm) where the fusion-face reflector is, a finer grid. With the
+# reference block present, the amplitude reference is first taken on its 10 mm side-drilled hole
+# (same --set values), then the demo annotation: -6 dB sizing and caliper on the flaw, finding F1.
+ref=()
+[ -f "$samples/reference_block.h5" ] && ref=(--demo-reference)
+run --demo "$samples" --frame 10 "${weld_set[@]}" "${ref[@]}" --demo-annotate \
+    --screenshot "$out/weld.png" --export "$out/weld-export.png" --timings --timeout 240
+# Phantom P-2 on its own (no weld case text), an ellipse on the 6 mm anechoic cyst at (-8, 25) mm
+# (position from samples/phantom_p2.json) and a finding from it.
 if [ -f "$samples/phantom_p2.h5" ]; then
-  run --demo "$samples" --capture 1 --demo-annotate --screenshot "$out/phantom.png" --timings
+  run "$samples/phantom_p2.h5" --demo-ellipse=-8,25,3.2,3.2 --screenshot "$out/phantom.png" --timings --timeout 240
 else
   echo "screenshots: $samples/phantom_p2.h5 missing; phantom screenshot skipped" >&2
 fi
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/phantom.png; do
+  [ -f "$f" ] || continue
+  /usr/bin/python3 - "$f" <<'PY'
+import struct, sys, zlib
+path = sys.argv[1]
+d = open(path, 'rb').read()
+assert d[:8] == b'\x89PNG\r\n\x1a\n', f'{path}: not a PNG'
+i, idat, w, h = 8, b'', 0, 0
+while i < len(d):
+    n = struct.unpack('>I', d[i:i + 4])[0]
+    t, c = d[i + 4:i + 8], d[i + 8:i + 8 + n]
+    if zlib.crc32(t + c) & 0xffffffff != struct.unpack('>I', d[i + 8 + n:i + 12 + n])[0]:
+        sys.exit(f'{path}: bad CRC in {t}')
+    if t == b'IHDR':
+        w, h, depth, ctype = struct.unpack('>IIBB', c[:10])
+        bpp = {2: 3, 6: 4, 0: 1}[ctype]
+    if t == b'IDAT':
+        idat += c
+    i += 12 + n
+    if t == b'IEND':
+        break
+else:
+    sys.exit(f'{path}: no IEND (truncated)')
+raw = zlib.decompress(idat)
+if len(raw) != h * (1 + w * bpp):
+    sys.exit(f'{path}: image data {len(raw)} bytes, expected {h * (1 + w * bpp)}')
+print(f'{path}: {w} x {h} PNG, complete')
+PY
+done
 ls -l "$out"

@@ -4,7 +4,7 @@
 //   umbra [CAPTURE.h5 | CASE.umbracase]
 //   umbra --demo DIR                      weld coupon (+ Phantom P-2 as a second capture) from DIR
 //   umbra ... --timings [--set stage.param=value ...]   print display re-render and beamforming times
-//   umbra ... --screenshot FILE [--demo-annotate] [--capture N] [--export FILE]
+//   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference] [--capture N] [--export FILE]
 #include <QApplication>
 #include <QCommandLineParser>
 #include <QFileInfo>
@@ -33,13 +33,20 @@ int main(int argc, char** argv) {
     QCommandLineOption demo("demo", "Open the demo captures from DIR (weld_coupon.h5, phantom_p2.h5).", "DIR");
     QCommandLineOption timings("timings", "Print display re-render and beamforming times to stderr.");
     QCommandLineOption shot("screenshot", "Wait for the image, grab the window to FILE (PNG) and quit.", "FILE");
-    QCommandLineOption annotate("demo-annotate", "Place a demonstration extent box, depth marker, caliper and finding.");
+    QCommandLineOption annotate("demo-annotate", "Place a demonstration -6 dB sizing, caliper and finding.");
+    QCommandLineOption ellipse("demo-ellipse",
+                               "With --screenshot: place an ellipse (centre X,Z, semi-axes A along x and B along depth, mm) "
+                               "and a finding from it.",
+                               "X,Z,A,B");
+    QCommandLineOption demoRef("demo-reference",
+                               "With --screenshot: first set the amplitude reference from the side-drilled hole at 10 mm "
+                               "of the case's reference_block.h5 capture.");
     QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
     QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, timings, shot, annotate, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
+    for (const auto& o : {demo, timings, shot, annotate, ellipse, demoRef, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -69,17 +76,35 @@ int main(int argc, char** argv) {
     }
     auto* ctl = w.controller();
     const size_t cap = cl.value(capture).toULongLong();
-    if (ok && cap > 0 && cap < ctl->captureCount()) ctl->setActiveCapture(cap);
-    if (ok && cl.isSet(frame)) ctl->setCurrentFrame(cl.value(frame).toULongLong());
-    if (ok && cl.isSet(set)) {
+    // Capture, frame and --set assignments: applied at start and again after visiting the
+    // reference block for --demo-reference.
+    const QStringList sets = cl.values(set);
+    const bool has_frame = cl.isSet(frame);
+    const size_t frame_index = cl.value(frame).toULongLong();
+    auto applySets = [ctl, sets]() -> bool {
+        if (sets.isEmpty()) return true;
         umbra::core::Recipe r = ctl->recipe();
         try {
-            for (const QString& a : cl.values(set)) r.applyAssignment(a.toStdString());
+            for (const QString& a : sets) r.applyAssignment(a.toStdString());
         } catch (const std::exception& e) {
             std::fprintf(stderr, "umbra: %s\n", e.what());
-            return 2;
+            return false;
         }
         ctl->applyRecipe(r);
+        return true;
+    };
+    auto applyView = [ctl, cap, has_frame, frame_index, applySets]() -> bool {
+        if (cap > 0 && cap < ctl->captureCount()) ctl->setActiveCapture(cap);
+        if (has_frame) ctl->setCurrentFrame(frame_index);
+        return applySets();
+    };
+    if (ok && !applyView()) return 2;
+    long ref_capture = -1;
+    if (ok && cl.isSet(demoRef)) {
+        const auto doc = ctl->document();
+        for (size_t i = 0; i < doc.captures.size(); ++i)
+            if (QFileInfo(QString::fromStdString(doc.captures[i].path)).fileName() == "reference_block.h5") ref_capture = long(i);
+        if (ref_capture < 0) std::fprintf(stderr, "umbra: --demo-reference: the case has no reference_block.h5 capture\n");
     }
 
     // Ten display-only re-renders (gain steps), reported on stderr; the recipe is put back.
@@ -123,12 +148,35 @@ int main(int argc, char** argv) {
         const QString out = cl.value(shot);
         const QString exp = cl.value(exportOpt);
         const bool ann = cl.isSet(annotate);
+        std::vector<double> ell;
+        for (const QString& v : cl.value(ellipse).split(',', Qt::SkipEmptyParts)) ell.push_back(v.toDouble());
+        if (cl.isSet(ellipse) && ell.size() != 4) {
+            std::fprintf(stderr, "umbra: --demo-ellipse needs X,Z,A,B in mm\n");
+            return 2;
+        }
         const double limit_s = cl.value(timeout).toDouble();
         auto* timer = new QTimer(&w);
         auto* elapsed = new double(0);
+        auto* phase = new int(ref_capture >= 0 ? 0 : 2);  // 0 go to the block, 1 take the reference, 2 shoot
         const bool timed = opt.timings;
-        QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings] {
+        QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings,
+                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell] {
             *elapsed += 0.25;
+            if (*phase == 0) {
+                ctl->setActiveCapture(static_cast<size_t>(ref_capture));
+                applySets();
+                *phase = 1;
+                return;
+            }
+            if (*phase == 1) {
+                if (!idle() && *elapsed < limit_s) return;
+                w.demoReference(10.0);
+                ctl->setActiveCapture(cap < ctl->captureCount() ? cap : 0);
+                if (has_frame) ctl->setCurrentFrame(frame_index);
+                applySets();
+                *phase = 2;
+                return;
+            }
             const bool image = ctl->hasImage();
             if (!idle() && *elapsed < limit_s) return;
             timer->stop();
@@ -139,8 +187,30 @@ int main(int argc, char** argv) {
                 return;
             }
             if (ann) w.demoAnnotate();
+            if (ell.size() == 4) {
+                umbra::core::Measurement m;
+                m.kind = umbra::core::MeasurementKind::Ellipse;
+                m.frame_index = ctl->currentFrame();
+                m.points = {{ell[0], ell[1]}, {ell[0] + ell[2], ell[1]}, {ell[0], ell[1] + ell[3]}};
+                m.label = "round region";
+                const std::string id = ctl->addMeasurement(m);
+                const std::string fid = ctl->addFindingFromMeasurement(id);
+                auto fs = ctl->findings();
+                for (auto& f : fs)
+                    if (f.id == fid)
+                        f.indication.description =
+                            "Round echo-free region with a bright far wall; demonstration annotation placed at a stated position.";
+                ctl->editFindings(fs, "Describe finding");
+            }
             QTimer::singleShot(300, &w, [&w, out, exp] {
-                const bool saved = w.grab().save(out, "PNG");
+                // Written to a temporary name and renamed, so that an interrupted run or two
+                // runs at once never leave a half-written PNG under the final name.
+                const QString tmp = out + ".part";
+                bool saved = w.grab().save(tmp, "PNG");
+                if (saved) {
+                    QFile::remove(out);
+                    saved = QFile::rename(tmp, out);
+                }
                 std::fprintf(stderr, "umbra: screenshot %s %s\n", out.toLocal8Bit().constData(), saved ? "written" : "FAILED");
                 if (!exp.isEmpty()) w.exportImage(exp, 2400);
                 QApplication::exit(saved ? 0 : 3);

@@ -306,3 +306,41 @@ TEST(case_file_test, autosave_path_is_a_sibling) {
     EXPECT_EQ(autosavePath("/cases/w12.umbracase"), "/cases/w12.umbracase.autosave");
     EXPECT_EQ(autosavePath("/cases/w12"), "/cases/w12.umbracase.autosave");
 }
+
+// The amplitude reference (label, linear amplitude after TCG, capture hash, recipe, where it was
+// taken) survives save and load, byte for byte on a second save; a case without one stays without.
+TEST(case_file_test, amplitude_reference_round_trip) {
+    TempDir t;
+    CaseDocument d = fullCase(t.path());
+    EXPECT_FALSE(loadCase([&] { const fs::path f = t.path() / "none.umbracase"; saveCase(f.string(), d); return f.string(); }())
+                     .amplitude_reference.has_value());
+    AmplitudeReference a;
+    a.label = "Ø2.5 mm SDH at 10 mm, reference block";
+    a.amplitude = 0.0123456789012345;
+    a.capture_sha256 = std::string(64, 'c');
+    a.recipe_json = "{\n  \"das\": {\n    \"f_number\": 2.0\n  }\n}";
+    a.frame = 0;
+    a.x_mm = -1.25;
+    a.z_mm = 10.05;
+    d.amplitude_reference = a;
+    const fs::path file = t.path() / "ref.umbracase";
+    saveCase(file.string(), d);
+    const CaseDocument back = loadCase(file.string());
+    ASSERT_TRUE(back.amplitude_reference.has_value());
+    EXPECT_EQ(*back.amplitude_reference, a);
+    EXPECT_TRUE(back == d);
+    EXPECT_EQ(caseToJson(back, t.path().string()), readFile(file));
+
+    // A reference amplitude that is not positive is refused, naming the key.
+    std::string text = readFile(file);
+    const std::string from = "\"amplitude\": 0.0123456789012345";
+    const size_t p = text.find(from);
+    ASSERT_NE(p, std::string::npos);
+    writeFile(file, text.replace(p, from.size(), "\"amplitude\": 0"));
+    try {
+        loadCase(file.string());
+        FAIL();
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.problems().at(0).where, "amplitude_reference.amplitude");
+    }
+}

@@ -49,7 +49,8 @@ QString MeasurementTable::selectedId() const {
     return rows.isEmpty() ? QString() : idAt(rows.first().row());
 }
 
-void MeasurementTable::setMeasurements(const std::vector<core::Measurement>& ms, const core::UncertaintyModel& u) {
+void MeasurementTable::setMeasurements(const std::vector<core::Measurement>& ms, const core::UncertaintyModel& u,
+                                       const std::map<std::string, std::vector<core::Quantity>>& given) {
     const QString keep = selectedId();
     ++updating_;
     setRowCount(static_cast<int>(ms.size()));
@@ -57,7 +58,8 @@ void MeasurementTable::setMeasurements(const std::vector<core::Measurement>& ms,
         const core::Measurement& m = ms[static_cast<size_t>(row)];
         QString values, tip;
         try {
-            const auto qs = core::evaluate(m, u);
+            const auto g = given.find(m.id);
+            const auto qs = g != given.end() ? g->second : core::evaluate(m, u);
             values = QString::fromStdString(core::formatQuantities(qs));
             QStringList tips;
             for (const auto& qy : qs) tips << QString::fromStdString(core::quantityTooltip(qy, u));

@@ -11,6 +11,8 @@
 #include <QString>
 #include <QTableWidget>
 
+#include <map>
+#include <string>
 #include <vector>
 
 #include "core/measurement.h"
@@ -26,7 +28,10 @@ public:
 
     /// Shows `ms`, evaluated with `u` (pixel size, speed-of-sound uncertainty, surface).
     /// Keeps the selected row when its id is still present. Emits no signal.
-    void setMeasurements(const std::vector<core::Measurement>& ms, const core::UncertaintyModel& u);
+    /// `given`: quantities by measurement id that need the image (−6 dB sizing); others are
+    /// computed with core::evaluate.
+    void setMeasurements(const std::vector<core::Measurement>& ms, const core::UncertaintyModel& u,
+                         const std::map<std::string, std::vector<core::Quantity>>& given = {});
     /// Selects the row of `id` ("" clears the selection). Emits no signal.
     void selectMeasurement(const QString& id);
     /// Id of the selected row ("" when none).

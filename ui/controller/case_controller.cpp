@@ -4,6 +4,7 @@
 #include <QDir>
 #include <QElapsedTimer>
 #include <QStandardPaths>
+#include <QStringList>
 #include <QFileInfo>
 
 #include <algorithm>
@@ -11,6 +12,7 @@
 #include <cstring>
 #include <sstream>
 
+#include "core/drop_sizing.h"
 #include "core/error.h"
 #include "reconstruction/pipeline.h"
 #include "ui/controller/value_command.h"
@@ -65,6 +67,7 @@ void CaseController::resetState() {
     cache_.clear();
     envelope_.reset();
     db_.clear();
+    tgc_amp_.clear();
     image_ = QImage();
     top_image_ = QImage();
     frame_ = 0;
@@ -185,6 +188,7 @@ void CaseController::openActiveCapture() {
     if (reader_ && frame_ >= frameCount()) frame_ = 0;
     emit captureChanged();
     emit recipeChanged();
+    emit referenceChanged();
     emit measurementsChanged();
     emit frameChanged(frame_);
     emit imageChanged();
@@ -487,6 +491,7 @@ void CaseController::rerender() {
     t.start();
     try {
         const core::Frame tgc = recon::applyTgc(*envelope_, reader_->header(), recipe_);
+        tgc_amp_ = tgc.envelope;
         db_ = recon::logCompress(tgc, recipe_);
         image_ = rgbToImage(recon::colourise(db_, recipe_), envelope_->nx(), envelope_->nz());
     } catch (const std::exception& e) {
@@ -642,6 +647,129 @@ void CaseController::editFindings(const std::vector<core::Finding>& fs, const QS
     undo_.push(new FindingEditCommand(what, doc_.findings, fs, [this](const FindingList& v) { setFindings(v); }));
 }
 
+// ---------------------------------------------------------------------------------- amplitude reference
+
+std::optional<CaseController::Peak> CaseController::peakIn(const core::Measurement& m) const {
+    if (!envelope_ || m.frame_index != frame_ || tgc_amp_.size() != envelope_->nx() * envelope_->nz() || m.points.empty())
+        return std::nullopt;
+    double x0 = 1e300, x1 = -1e300, z0 = 1e300, z1 = -1e300;
+    for (const auto& p : m.points) {
+        x0 = std::min(x0, p.x_mm), x1 = std::max(x1, p.x_mm);
+        z0 = std::min(z0, p.z_mm), z1 = std::max(z1, p.z_mm);
+    }
+    if (m.kind == core::MeasurementKind::Ellipse && m.points.size() == 3) {
+        const auto& c = m.points[0];
+        const double r = std::max(std::hypot(m.points[1].x_mm - c.x_mm, m.points[1].z_mm - c.z_mm),
+                                  std::hypot(m.points[2].x_mm - c.x_mm, m.points[2].z_mm - c.z_mm));
+        x0 = c.x_mm - r, x1 = c.x_mm + r, z0 = c.z_mm - r, z1 = c.z_mm + r;
+    }
+    const bool marker = m.kind == core::MeasurementKind::DepthMarker;
+    if (marker) z0 -= 0.5, z1 += 0.5;  // a depth marker: the band ±0.5 mm about its depth, all x
+    const auto& xs = envelope_->x_m;
+    const auto& zs = envelope_->z_m;
+    std::optional<Peak> best;
+    for (size_t iz = 0; iz < zs.size(); ++iz) {
+        const double z = zs[iz] * 1e3;
+        if (z < z0 || z > z1) continue;
+        for (size_t ix = 0; ix < xs.size(); ++ix) {
+            const double x = xs[ix] * 1e3;
+            if (!marker && (x < x0 || x > x1)) continue;
+            const double a = tgc_amp_[iz * xs.size() + ix];
+            if (a > 0 && (!best || a > best->amplitude)) best = Peak{a, x, z};
+        }
+    }
+    return best;
+}
+
+std::optional<core::DropSizing> CaseController::dropSizing(const core::Measurement& m) const {
+    if (m.kind != core::MeasurementKind::DropSizing || m.points.size() != 2 || !envelope_ || m.frame_index != frame_ ||
+        tgc_amp_.size() != envelope_->nx() * envelope_->nz())
+        return std::nullopt;
+    std::vector<double> xs, zs;
+    for (double v : envelope_->x_m) xs.push_back(v * 1e3);
+    for (double v : envelope_->z_m) zs.push_back(v * 1e3);
+    return core::dropSize(tgc_amp_, xs, zs, m.points[0], m.points[1]);
+}
+
+std::vector<core::Quantity> CaseController::quantities(const core::Measurement& m) const {
+    if (const auto d = dropSizing(m); d && d->found) return core::dropSizingQuantities(*d, uncertaintyModel());
+    return core::evaluate(m, uncertaintyModel());
+}
+
+bool CaseController::setAmplitudeReferenceFrom(const std::string& measurement_id, const QString& label, QString* why) {
+    const core::Measurement* m = measurement(measurement_id);
+    auto fail = [&](const QString& w) {
+        if (why) *why = w;
+        return false;
+    };
+    if (!m) return fail(tr("Select a measurement (extent box or depth marker) around the reference echo first."));
+    if (m->frame_index != frame_) return fail(tr("The measurement is on frame %1; go to that frame first.").arg(m->frame_index + 1));
+    const auto pk = peakIn(*m);
+    if (!pk) return fail(tr("No echo inside the measurement on this frame (no image yet, or amplitude zero)."));
+    core::AmplitudeReference r;
+    r.label = label.trimmed().toStdString();
+    if (r.label.empty()) r.label = "reference echo";
+    r.amplitude = pk->amplitude;
+    r.capture_sha256 = activeOrNull() ? activeOrNull()->sha256 : std::string();
+    r.recipe_json = recipe_.toJson();
+    r.frame = frame_;
+    r.x_mm = pk->x_mm;
+    r.z_mm = pk->z_mm;
+    editAmplitudeReference(r, tr("Set amplitude reference"));
+    return true;
+}
+
+void CaseController::editAmplitudeReference(const std::optional<core::AmplitudeReference>& r, const QString& what) {
+    if (r == doc_.amplitude_reference) return;
+    undo_.push(new ValueCommand<std::optional<core::AmplitudeReference>>(
+        what, doc_.amplitude_reference, r, [this](const std::optional<core::AmplitudeReference>& v) { setAmplitudeReference(v); }));
+}
+
+void CaseController::setAmplitudeReference(const std::optional<core::AmplitudeReference>& r) {
+    doc_.amplitude_reference = r;
+    emit referenceChanged();
+}
+
+QString CaseController::amplitudeUnit() const {
+    if (!doc_.amplitude_reference) return tr("dB re frame peak");
+    return tr("dB re %1").arg(QString::fromStdString(doc_.amplitude_reference->label));
+}
+
+std::optional<double> CaseController::dbReReference(double linear) const {
+    if (!doc_.amplitude_reference || !(linear > 0) || !(doc_.amplitude_reference->amplitude > 0)) return std::nullopt;
+    return 20.0 * std::log10(linear / doc_.amplitude_reference->amplitude);
+}
+
+std::vector<std::string> CaseController::referenceRecipeDifferences() const {
+    std::vector<std::string> out;
+    if (!doc_.amplitude_reference) return out;
+    core::Recipe ref = recon::defaultRecipe();
+    try {
+        if (!doc_.amplitude_reference->recipe_json.empty()) ref.mergeJson(doc_.amplitude_reference->recipe_json, "amplitude reference");
+    } catch (const std::exception&) {
+        return {"(the reference's recipe cannot be read)"};
+    }
+    for (const auto& st : recipe_.stages())
+        for (const auto& p : st.params) {
+            const std::string key = st.name + "." + p.name;
+            // Display settings re-map the image only, except TCG: the reference amplitude is after TCG.
+            if (p.display_only && st.name != "tgc") continue;
+            // The grid's edges only crop the image; its step does change sampled peaks.
+            if (st.name == "grid" && p.name != "step_mm") continue;
+            if (!ref.has(key)) continue;
+            if (ref.values().at(key) != recipe_.values().at(key)) out.push_back(key);
+        }
+    return out;
+}
+
+QString CaseController::referenceWarning() const {
+    const auto d = referenceRecipeDifferences();
+    if (d.empty()) return {};
+    QStringList keys;
+    for (const auto& k : d) keys << QString::fromStdString(k);
+    return tr("Amplitudes not comparable with the reference: the recipe differs in %1.").arg(keys.join(", "));
+}
+
 std::string CaseController::addFindingFromMeasurement(const std::string& measurement_id) {
     const core::Measurement* m = measurement(measurement_id);
     core::Finding f;
@@ -688,7 +816,29 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
             }
             if (best > -1e29f) {
                 f.indication.peak_db = best;
-                f.indication.reference = "display reference of the frame (recipe log compression)";
+                f.indication.reference = "frame peak (display reference, recipe log compression)";
+            }
+            // With a case reference: the peak of the TCG-corrected envelope re the reference.
+            if (doc_.amplitude_reference) {
+                f.indication.peak_db.reset();
+                if (const auto pk = peakIn(*m); pk && pk->amplitude > 0) {
+                    f.indication.peak_db = *dbReReference(pk->amplitude);
+                    f.indication.reference = doc_.amplitude_reference->label;
+                    if (!referenceRecipeDifferences().empty())
+                        f.indication.reference += " (recipe differs from the reference's: not comparable)";
+                }
+            }
+        }
+        if (m->kind == core::MeasurementKind::DropSizing) {
+            const auto qs = quantities(*m);
+            for (const auto& q : qs) {
+                if (q.name == "length −6 dB") f.indication.length_mm = q.value;
+                if (q.name == "height −6 dB") f.indication.height_mm = q.value;
+            }
+            if (const auto d = dropSizing(*m); d && d->found) {
+                f.indication.x_mm = 0.5 * (d->left_x_mm + d->right_x_mm);
+                z0 = d->top_z_mm;
+                f.indication.depth_mm = z0;
             }
         }
         std::ostringstream loc;

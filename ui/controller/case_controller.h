@@ -17,6 +17,7 @@
 #include "core/capture.h"
 #include "core/capture_file.h"
 #include "core/case_file.h"
+#include "core/drop_sizing.h"
 #include "core/frame.h"
 #include "core/measurement.h"
 #include "core/parameters.h"
@@ -141,6 +142,41 @@ public:
     void setFindings(const std::vector<core::Finding>& fs);  ///< no undo (commands use it)
     /// New finding pre-filled from a measurement (location, sizes, peak dB). Returns its id.
     std::string addFindingFromMeasurement(const std::string& measurement_id);
+    // ------------------------------------------------------------------ amplitude reference
+    /// The case's amplitude reference (0 dB), if set.
+    const std::optional<core::AmplitudeReference>& amplitudeReference() const { return doc_.amplitude_reference; }
+    /// Undoable: sets the reference from the peak of the TCG-corrected envelope inside the
+    /// measurement (extent box, −6 dB sizing, caliper, ellipse: its bounding box; depth marker:
+    /// ±0.5 mm about its depth) on the current frame. Returns false with `why` when there is no
+    /// such peak (no image, measurement on another frame, nothing above zero).
+    bool setAmplitudeReferenceFrom(const std::string& measurement_id, const QString& label, QString* why = nullptr);
+    /// Undoable replacement (nullopt clears it).
+    void editAmplitudeReference(const std::optional<core::AmplitudeReference>& r, const QString& what);
+    void setAmplitudeReference(const std::optional<core::AmplitudeReference>& r);  ///< no undo (commands use it)
+    /// "dB re Ø2.5 mm SDH at 10 mm" with a reference, "dB re frame peak" without.
+    QString amplitudeUnit() const;
+    /// Linear amplitude after TCG of the current frame, [N_z][N_x] (empty without an image).
+    const std::vector<float>& tgcAmplitude() const { return tgc_amp_; }
+    /// dB of a linear (after TCG) amplitude relative to the reference; nullopt without one or for 0.
+    std::optional<double> dbReReference(double linear) const;
+    /// Recipe keys that affect amplitudes (reconstruction settings and TCG) and differ between the
+    /// current recipe and the reference's ("stage.param"); empty without a reference.
+    std::vector<std::string> referenceRecipeDifferences() const;
+    /// One sentence warning that amplitudes are not comparable, naming the keys; "" when comparable.
+    QString referenceWarning() const;
+    /// Peak of the TCG-corrected envelope inside a measurement on the current frame.
+    struct Peak {
+        double amplitude = 0;
+        double x_mm = 0, z_mm = 0;
+    };
+    std::optional<Peak> peakIn(const core::Measurement& m) const;
+    /// Quantities of a measurement: core::evaluate, and for a −6 dB sizing on the current frame
+    /// the drop sizing of the TCG-corrected envelope (box quantities on other frames).
+    std::vector<core::Quantity> quantities(const core::Measurement& m) const;
+    /// −6 dB drop sizing of the TCG-corrected envelope inside a −6 dB sizing measurement on the
+    /// current frame; nullopt for other kinds, other frames or without an image.
+    std::optional<core::DropSizing> dropSizing(const core::Measurement& m) const;
+
     /// Technique block: array, frequency, transmits, speed of sound, grid, fidelity, TCG.
     QString techniqueText() const;
     /// One line for exported images.
@@ -160,6 +196,7 @@ signals:
     void measurementsChanged();
     void selectionChanged(QString id);
     void findingsChanged();
+    void referenceChanged();      ///< amplitude reference set, changed or cleared
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
@@ -197,6 +234,7 @@ private:
     std::map<size_t, FramePtr> cache_;
     FramePtr envelope_;
     std::vector<float> db_;
+    std::vector<float> tgc_amp_;
     QImage image_;
     QImage top_image_;
     std::pair<double, double> top_gate_mm_{0, 0};

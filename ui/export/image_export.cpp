@@ -1,6 +1,7 @@
 // SPDX-License-Identifier: MIT
 #include "ui/export/image_export.h"
 
+#include <QFile>
 #include <QFileInfo>
 #include <QPainter>
 
@@ -42,6 +43,11 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
         if (here) fs << QStringLiteral("F%1: %2").arg(f.number).arg(QString::fromStdString(f.indication.location));
     }
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
+    if (ctl.amplitudeReference()) {
+        QString ref = QStringLiteral("Finding amplitudes in %1").arg(ctl.amplitudeUnit());
+        if (!ctl.referenceWarning().isEmpty()) ref += QStringLiteral(" — ") + ctl.referenceWarning();
+        style.caption << ref;
+    }
     if (ctl.hasCapture() && ctl.header().isSynthetic()) style.caption << QStringLiteral("Synthetic demonstration data");
 
     // The part of the image visible on screen (empty margins around the image are left out).
@@ -69,8 +75,17 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
 
 void exportAnnotatedPng(const QString& path, const ImageView& view, const CaseController& ctl, int width_px) {
     const QImage img = renderAnnotatedImage(view, ctl, width_px);
-    if (!img.save(path, "PNG"))
+    // Written under a temporary name and renamed: never a half-written PNG under `path`.
+    const QString tmp = path + ".part";
+    if (!img.save(tmp, "PNG")) {
+        QFile::remove(tmp);
         throw core::InputError(path.toStdString(), "", "cannot write the PNG (folder missing or not writable?)");
+    }
+    QFile::remove(path);
+    if (!QFile::rename(tmp, path)) {
+        QFile::remove(tmp);
+        throw core::InputError(path.toStdString(), "", "cannot replace the PNG (file in use or folder not writable?)");
+    }
 }
 
 }  // namespace umbra::ui

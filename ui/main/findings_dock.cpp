@@ -37,7 +37,10 @@ FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
     QObject::connect(ctl, &CaseController::recipeChanged, pane, [ctl, pane] { pane->setTechnique(ctl->techniqueText()); });
 
     auto refreshTable = [ctl, table] {
-        table->setMeasurements(ctl->measurements(), ctl->uncertaintyModel());
+        std::map<std::string, std::vector<core::Quantity>> given;
+        for (const auto& m : ctl->measurements())
+            if (m.kind == core::MeasurementKind::DropSizing) given[m.id] = ctl->quantities(m);
+        table->setMeasurements(ctl->measurements(), ctl->uncertaintyModel(), given);
         table->selectMeasurement(ctl->selectedMeasurement());
     };
     QObject::connect(ctl, &CaseController::measurementsChanged, table, [ctl, pane, refreshTable] {

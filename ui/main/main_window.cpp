@@ -89,10 +89,21 @@ MainWindow::MainWindow(Options options, QWidget* parent)
             return;
         }
         const auto db = view_->dbAt(mm);
-        readout_->setText(tr("x %1 mm   depth %2 mm   %3")
-                              .arg(mm.x(), 0, 'f', 2)
-                              .arg(mm.y(), 0, 'f', 2)
-                              .arg(db ? QStringLiteral("%1 dB").arg(*db, 0, 'f', 1) : QStringLiteral("—")));
+        QString amp = db ? QStringLiteral("%1 dB re frame peak").arg(*db, 0, 'f', 1) : QStringLiteral("—");
+        if (ctl_->amplitudeReference()) {
+            // dB of the TCG-corrected envelope at the nearest pixel, relative to the case reference.
+            amp = QStringLiteral("—");
+            const core::Frame* f = ctl_->envelope();
+            const auto& a = ctl_->tgcAmplitude();
+            if (f && f->nx() > 1 && f->nz() > 1 && a.size() == f->nx() * f->nz()) {
+                const double dx = (f->x_m[1] - f->x_m[0]) * 1e3, dz = (f->z_m[1] - f->z_m[0]) * 1e3;
+                const long ix = std::lround((mm.x() - f->x_m[0] * 1e3) / dx), iz = std::lround((mm.y() - f->z_m[0] * 1e3) / dz);
+                if (ix >= 0 && iz >= 0 && ix < static_cast<long>(f->nx()) && iz < static_cast<long>(f->nz()))
+                    if (const auto r = ctl_->dbReReference(a[static_cast<size_t>(iz) * f->nx() + static_cast<size_t>(ix)]))
+                        amp = QStringLiteral("%1 %2").arg(*r, 0, 'f', 1).arg(ctl_->amplitudeUnit());
+            }
+        }
+        readout_->setText(tr("x %1 mm   depth %2 mm   %3").arg(mm.x(), 0, 'f', 2).arg(mm.y(), 0, 'f', 2).arg(amp));
         trace_->setCursor(mm.x(), mm.y());
     });
 
@@ -219,6 +230,8 @@ void MainWindow::buildActions() {
         {Tool::DepthMarker, tr("&Depth marker"), QKeySequence(Qt::Key_D), tr("One point: depth below the surface")},
         {Tool::ExtentBox, tr("Extent &box"), QKeySequence(Qt::Key_B), tr("Two corners: length and height")},
         {Tool::Ellipse, tr("&Ellipse"), QKeySequence(Qt::Key_E), tr("Centre and two axis ends: axes, area, circumference")},
+        {Tool::DropSizing, tr("−6 dB &sizing"), QKeySequence(Qt::Key_S),
+         tr("Box around an indication: length and height where the amplitude stays within 6 dB of its peak")},
     };
     for (const auto& t : list) {
         QAction* ta = tools->addAction(t.text);
@@ -234,6 +247,12 @@ void MainWindow::buildActions() {
     tools->addSeparator();
     a = tools->addAction(tr("Add &finding from selected measurement"), this, &MainWindow::addFindingFromSelection);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_F));
+    tools->addSeparator();
+    a = tools->addAction(tr("Set amplitude &reference from selection…"), this, &MainWindow::setReferenceFromSelection);
+    a->setToolTip(tr("The peak inside the selected box (or at the selected depth marker) on this frame becomes 0 dB"));
+    a = tools->addAction(tr("Clear amplitude reference"), this, [this] {
+        ctl_->editAmplitudeReference(std::nullopt, tr("Clear amplitude reference"));
+    });
 
     QMenu* view = menuBar()->addMenu(tr("&View"));
     a = view->addAction(tr("&Fit image"), view_, &ImageView::fitToWindow);
@@ -325,7 +344,13 @@ void MainWindow::buildStatusBar() {
     cancel_->setToolTip(tr("Stop the reconstruction (Ctrl+.)"));
     cancel_->hide();
     connect(cancel_, &QToolButton::clicked, ctl_, &CaseController::cancelReconstruction);
+    ref_warning_ = new QLabel;
+    ref_warning_->setStyleSheet("color: #b3261e; font-weight: bold;");
+    ref_warning_->hide();
+    connect(ctl_, &CaseController::referenceChanged, this, &MainWindow::updateReferenceWarning);
+    connect(ctl_, &CaseController::recipeChanged, this, &MainWindow::updateReferenceWarning);
     statusBar()->addWidget(readout_);
+    statusBar()->addWidget(ref_warning_, 1);
     statusBar()->addPermanentWidget(timing_);
     statusBar()->addPermanentWidget(progress_);
     statusBar()->addPermanentWidget(cancel_);
@@ -590,6 +615,38 @@ void MainWindow::addFindingFromSelection() {
     ctl_->addFindingFromMeasurement(id.toStdString());
 }
 
+void MainWindow::setReferenceFromSelection() {
+    const QString id = ctl_->selectedMeasurement();
+    if (id.isEmpty()) {
+        statusBar()->showMessage(tr("Select an extent box or depth marker around the reference echo first"), 6000);
+        return;
+    }
+    QString label = QStringLiteral("Ø2.5 mm SDH at %1 mm, reference block");
+    if (const auto* m = ctl_->measurement(id.toStdString()); m && !m->points.empty())
+        label = label.arg(m->kind == core::MeasurementKind::DepthMarker ? m->points[0].z_mm
+                                                                       : 0.5 * (m->points[0].z_mm + m->points.back().z_mm),
+                          0, 'f', 0);
+    if (opt_.interactive) {
+        bool ok = false;
+        label = QInputDialog::getText(this, tr("Amplitude reference"),
+                                      tr("What is the reference echo (reflector, depth, block)? Its peak becomes 0 dB."),
+                                      QLineEdit::Normal, label, &ok);
+        if (!ok) return;
+    }
+    QString why;
+    if (!ctl_->setAmplitudeReferenceFrom(id.toStdString(), label, &why))
+        showError(tr("Cannot set the amplitude reference"), why);
+    else
+        statusBar()->showMessage(tr("Amplitude reference set: %1").arg(label), 6000);
+}
+
+void MainWindow::updateReferenceWarning() {
+    const QString w = ctl_->referenceWarning();
+    ref_warning_->setText(w);
+    ref_warning_->setToolTip(w);
+    ref_warning_->setVisible(!w.isEmpty());
+}
+
 bool MainWindow::openDemo(const QString& dir) {
     const QString weld = dir + "/weld_coupon.h5";
     if (!QFileInfo::exists(weld)) {
@@ -602,6 +659,8 @@ bool MainWindow::openDemo(const QString& dir) {
         if (QFileInfo::exists(phantom)) {
             ctl_->addCapture(phantom, false);
         }
+        const QString block = dir + "/reference_block.h5";
+        if (QFileInfo::exists(block)) ctl_->addCapture(block, false);
         core::CaseDocument t = ctl_->document();
         t.title = "Weld W-031, spool 14 (synthetic demo)";
         t.background = "Production weld, 5 % random selection for volumetric examination under the shop's written procedure.";
@@ -636,19 +695,15 @@ void MainWindow::demoAnnotate() {
     while (z1 + 1 < nz && db[(z1 + 1) * nx + bx] >= lim) ++z1;
     auto X = [&](size_t i) { return f->x_m[i] * 1e3; };
     auto Z = [&](size_t i) { return f->z_m[i] * 1e3; };
-    const double pad = (f->x_m[1] - f->x_m[0]) * 1e3;
+    // A −6 dB sizing box with room around the indication (the tool finds the edges inside it).
+    const double padx = std::max(1.0, X(x1) - X(x0)), padz = std::max(1.0, Z(z1) - Z(z0));
     core::Measurement box;
-    box.kind = core::MeasurementKind::ExtentBox;
+    box.kind = core::MeasurementKind::DropSizing;
     box.frame_index = ctl_->currentFrame();
-    box.points = {{X(x0) - pad, Z(z0) - pad}, {X(x1) + pad, Z(z1) + pad}};
-    box.label = "−6 dB extent";
+    box.points = {{std::max(X(0), X(x0) - padx), std::max(Z(0), Z(z0) - padz)},
+                  {std::min(X(nx - 1), X(x1) + padx), std::min(Z(nz - 1), Z(z1) + padz)}};
+    box.label = "−6 dB";
     const std::string box_id = ctl_->addMeasurement(box);
-    core::Measurement depth;
-    depth.kind = core::MeasurementKind::DepthMarker;
-    depth.frame_index = ctl_->currentFrame();
-    depth.points = {{X(bx), Z(bz)}};
-    depth.label = "peak";
-    ctl_->addMeasurement(depth);
     core::Measurement cal;
     cal.kind = core::MeasurementKind::Caliper;
     cal.frame_index = ctl_->currentFrame();
@@ -661,8 +716,25 @@ void MainWindow::demoAnnotate() {
     auto fs = ctl_->findings();
     for (auto& x : fs)
         if (x.id == fid)
-            x.indication.description = "Echo region bounded at −6 dB from its peak; demonstration annotation placed automatically.";
+            x.indication.description = "Echo sized at −6 dB from its peak; demonstration annotation placed automatically.";
     ctl_->editFindings(fs, tr("Describe finding"));
+}
+
+bool MainWindow::demoReference(double depth_mm) {
+    const core::Frame* f = ctl_->envelope();
+    if (!f || f->nx() < 3 || f->nz() < 3) return false;
+    // A box across the image, ±1.5 mm about the stated depth: its peak is the hole's echo.
+    core::Measurement box;
+    box.kind = core::MeasurementKind::ExtentBox;
+    box.frame_index = ctl_->currentFrame();
+    box.points = {{f->x_m.front() * 1e3, depth_mm - 1.5}, {f->x_m.back() * 1e3, depth_mm + 1.5}};
+    box.label = "reference echo";
+    const std::string id = ctl_->addMeasurement(box);
+    QString why;
+    const bool ok = ctl_->setAmplitudeReferenceFrom(
+        id, QStringLiteral("Ø2.5 mm SDH at %1 mm, reference block").arg(depth_mm, 0, 'f', 0), &why);
+    if (!ok) std::fprintf(stderr, "umbra: demo reference: %s\n", why.toLocal8Bit().constData());
+    return ok;
 }
 
 // ------------------------------------------------------------------------------- events

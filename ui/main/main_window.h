@@ -55,6 +55,9 @@ public:
     /// Opens the demo: DIR/weld_coupon.h5 (and DIR/phantom_p2.h5 as a second capture).
     bool openDemo(const QString& dir);
     /// Places a demonstration caliper, extent box and finding on the strongest echo.
+    /// Demo: sets the case's amplitude reference from the strongest echo within ±1.5 mm of
+    /// `depth_mm` on the current frame (the reference block's side-drilled hole). False if none.
+    bool demoReference(double depth_mm = 10.0);
     void demoAnnotate();
     /// Writes the annotated PNG of the current view.
     bool exportImage(const QString& path, int width_px);
@@ -88,6 +91,8 @@ private:
     void loadRecipe();
     void saveRecipe();
     void addFindingFromSelection();
+    void setReferenceFromSelection();
+    void updateReferenceWarning();
     void setTool(Tool t);
 
     Options opt_;
@@ -108,6 +113,7 @@ private:
     QComboBox* capture_combo_ = nullptr;
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;
+    QLabel* ref_warning_ = nullptr;  ///< amplitude reference: not comparable with the current recipe
     QProgressBar* progress_ = nullptr;
     QToolButton* cancel_ = nullptr;
     QTimer* autosave_ = nullptr;

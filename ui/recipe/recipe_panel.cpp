@@ -14,7 +14,10 @@
 #include <QSpinBox>
 #include <QVBoxLayout>
 
+#include <QValidator>
+
 #include <algorithm>
+#include <utility>
 #include <cmath>
 
 #include "core/error.h"
@@ -35,6 +38,38 @@ int decimalsFor(double step) {
     if (!(step > 0)) return 3;
     return std::clamp(static_cast<int>(std::ceil(-std::log10(step) - 1e-9)), 0, 6);
 }
+/// Double spin box that shows `zero` (e.g. "from capture") instead of 0 when 0 is not the
+/// minimum of its range (then QAbstractSpinBox::specialValueText cannot be used). The unit is
+/// part of the text so that the zero text stands alone.
+class ZeroTextDoubleSpinBox : public QDoubleSpinBox {
+public:
+    ZeroTextDoubleSpinBox(QString zero, QString unit) : zero_(std::move(zero)), unit_(std::move(unit)) {}
+    QString textFromValue(double v) const override {
+        if (v == 0.0) return zero_;
+        return QDoubleSpinBox::textFromValue(v) + unit_;
+    }
+    double valueFromText(const QString& text) const override {
+        const QString t = stripped(text);
+        if (t.isEmpty() || zero_.startsWith(t, Qt::CaseInsensitive)) return 0.0;
+        return QDoubleSpinBox::valueFromText(t);
+    }
+    QValidator::State validate(QString& input, int& pos) const override {
+        if (zero_.startsWith(input.trimmed(), Qt::CaseInsensitive))
+            return input.trimmed().compare(zero_, Qt::CaseInsensitive) == 0 ? QValidator::Acceptable : QValidator::Intermediate;
+        QString t = stripped(input);
+        return QDoubleSpinBox::validate(t, pos);
+    }
+
+private:
+    QString stripped(const QString& text) const {
+        QString t = text.trimmed();
+        const QString u = unit_.trimmed();
+        if (!u.isEmpty() && t.endsWith(u)) t.chop(u.size());
+        return t.trimmed();
+    }
+    QString zero_, unit_;
+};
+
 QString tooltipFor(const core::StageSpec& st, const core::ParamSpec& p) {
     QString t = QStringLiteral("<b>%1</b> <code>%2.%3</code><br>%4")
                     .arg(QString::fromStdString(p.label).toHtmlEscaped(), QString::fromStdString(st.name),
@@ -42,6 +77,8 @@ QString tooltipFor(const core::StageSpec& st, const core::ParamSpec& p) {
     if (!p.unit.empty()) t += QStringLiteral("<br>Unit: %1").arg(QString::fromStdString(p.unit).toHtmlEscaped());
     if (p.kind == core::ParamKind::Real || p.kind == core::ParamKind::Integer)
         t += QStringLiteral("<br>Range: %1 to %2").arg(p.min).arg(p.max);
+    if (!p.zero_means.empty())
+        t += QStringLiteral("<br>0 = %1").arg(QString::fromStdString(p.zero_means).toHtmlEscaped());
     t += p.display_only ? QStringLiteral("<br><i>Display setting: re-maps the stored image, no re-beamforming.</i>")
                         : QStringLiteral("<br><i>Reconstruction setting: the frame is beamformed again.</i>");
     return t;
@@ -97,12 +134,17 @@ void RecipePanel::build() {
             const QString unit = p.unit.empty() ? QString() : " " + QString::fromStdString(p.unit);
             switch (p.kind) {
                 case core::ParamKind::Real: {
-                    auto* s = new QDoubleSpinBox;
+                    const QString zero = QString::fromStdString(p.zero_means);
+                    // 0 as a mode: Qt's special-value text when 0 is the minimum, else a box that
+                    // writes the text for 0 itself (then the unit is part of its text).
+                    const bool own_zero = !zero.isEmpty() && p.min < 0 && p.max > 0;
+                    QDoubleSpinBox* s = own_zero ? new ZeroTextDoubleSpinBox(zero, unit) : new QDoubleSpinBox;
                     const double step = p.step > 0 ? p.step : niceStepFor(p.max - p.min);
                     s->setDecimals(decimalsFor(step));
                     s->setRange(p.min, p.max);
                     s->setSingleStep(step);
-                    s->setSuffix(unit);
+                    if (!own_zero) s->setSuffix(unit);
+                    if (!zero.isEmpty() && p.min == 0) s->setSpecialValueText(zero);
                     s->setKeyboardTracking(false);
                     connect(s, &QDoubleSpinBox::valueChanged, this, [this, key, s](double x) {
                         commit(key, QString::number(x, 'g', 12).toStdString());
@@ -116,6 +158,7 @@ void RecipePanel::build() {
                     s->setRange(static_cast<int>(p.min), static_cast<int>(p.max));
                     s->setSingleStep(p.step > 0 ? static_cast<int>(p.step) : 1);
                     s->setSuffix(unit);
+                    if (!p.zero_means.empty() && p.min == 0) s->setSpecialValueText(QString::fromStdString(p.zero_means));
                     s->setKeyboardTracking(false);
                     connect(s, &QSpinBox::valueChanged, this, [this, key](int x) { commit(key, std::to_string(x)); });
                     w = s;

@@ -21,10 +21,12 @@ namespace umbra::ui {
 TracePlot::TracePlot(QWidget* parent) : QWidget(parent) { setMinimumHeight(120); }
 
 void TracePlot::setTrace(std::vector<double> depth_mm, std::vector<float> db, double floor_db, double level_db,
-                         double cursor_depth_mm, const QString& title) {
+                         double cursor_depth_mm, const QString& title, double top_db, const QString& unit) {
     depth_ = std::move(depth_mm);
     db_ = std::move(db);
-    floor_ = std::min(-1.0, floor_db);
+    top_ = top_db;
+    floor_ = std::min(top_ - 1.0, floor_db);
+    unit_ = unit;
     level_ = level_db;
     cursor_ = cursor_depth_mm;
     title_ = title;
@@ -62,7 +64,7 @@ void TracePlot::paintEvent(QPaintEvent*) {
     }
     const double z0 = depth_.front(), z1 = depth_.back();
     auto X = [&](double z) { return a.left() + (z - z0) / (z1 - z0) * a.width(); };
-    auto Y = [&](double db) { return a.top() + (0 - db) / (0 - floor_) * a.height(); };
+    auto Y = [&](double db) { return a.top() + (top_ - db) / (top_ - floor_) * a.height(); };
     // Grid and ticks.
     const double sz = niceStep(z1 - z0, std::max(2, static_cast<int>(a.width() / 70)));
     for (double z = std::ceil(z0 / sz) * sz; z <= z1 + 1e-9; z += sz) {
@@ -71,20 +73,21 @@ void TracePlot::paintEvent(QPaintEvent*) {
         p.setPen(axis);
         p.drawText(QRectF(X(z) - 25, a.bottom() + 2, 50, 14), Qt::AlignCenter, QString::number(z, 'g', 5));
     }
-    const double sd = -floor_ <= 30 ? 6 : -floor_ <= 60 ? 10 : 20;
-    for (double d = 0; d >= floor_ - 1e-9; d -= sd) {
+    const double span = top_ - floor_;
+    const double sd = span <= 30 ? 6 : span <= 60 ? 10 : 20;
+    for (double d = std::floor(top_ / sd) * sd; d >= floor_ - 1e-9; d -= sd) {
         p.setPen(grid);
         p.drawLine(QPointF(a.left(), Y(d)), QPointF(a.right(), Y(d)));
         p.setPen(axis);
         p.drawText(QRectF(a.left() - 44, Y(d) - 7, 40, 14), Qt::AlignRight | Qt::AlignVCenter, QString::number(d, 'f', 0));
     }
-    p.drawText(QRectF(a.left(), 2, a.width(), 14), Qt::AlignRight | Qt::AlignVCenter, tr("dB (vertical) against depth, mm"));
+    p.drawText(QRectF(a.left(), 2, a.width(), 14), Qt::AlignRight | Qt::AlignVCenter, tr("%1 (vertical) against depth, mm").arg(unit_));
     p.setPen(axis);
     p.drawRect(a);
     // Trace.
     QPainterPath path;
     for (size_t i = 0; i < depth_.size(); ++i) {
-        const QPointF pt(X(depth_[i]), Y(std::max<double>(db_[i], floor_)));
+        const QPointF pt(X(depth_[i]), Y(std::clamp<double>(db_[i], floor_, top_)));
         if (i == 0) path.moveTo(pt);
         else path.lineTo(pt);
     }
@@ -93,9 +96,10 @@ void TracePlot::paintEvent(QPaintEvent*) {
     // Reporting level.
     QPen lp(QColor(196, 64, 40), 1.2, Qt::DashLine);
     p.setPen(lp);
-    p.drawLine(QPointF(a.left(), Y(level_)), QPointF(a.right(), Y(level_)));
-    p.drawText(QRectF(a.right() - 160, Y(level_) - 15, 156, 14), Qt::AlignRight | Qt::AlignVCenter,
-               tr("reporting level %1 dB").arg(level_, 0, 'f', 1));
+    const double ly = Y(std::clamp(level_, floor_, top_));
+    p.drawLine(QPointF(a.left(), ly), QPointF(a.right(), ly));
+    p.drawText(QRectF(a.right() - 260, ly - 15, 256, 14), Qt::AlignRight | Qt::AlignVCenter,
+               tr("reporting level %1 %2").arg(level_, 0, 'f', 1).arg(unit_));
     if (cursor_ >= z0 && cursor_ <= z1) {
         p.setPen(QPen(QColor(120, 120, 120), 1, Qt::DotLine));
         p.drawLine(QPointF(X(cursor_), a.top()), QPointF(X(cursor_), a.bottom()));
@@ -139,7 +143,8 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
     level_->setSingleStep(1);
     level_->setValue(-12);
     level_->setSuffix(" dB");
-    level_->setToolTip(tr("Reporting level drawn on the trace, dB relative to the display reference "
+    level_->setToolTip(tr("Reporting level drawn on the trace: dB relative to the case's amplitude reference "
+                          "(Tools → Set amplitude reference), or to the frame peak without one "
                           "(a view setting; the written procedure states the real one)"));
     rf_on_ = new QCheckBox(tr("Raw RF of transmit"));
     rf_on_->setToolTip(tr("Show the recorded trace of one transmit-receive pair of this frame"));
@@ -160,6 +165,8 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
     v->addWidget(plot_, 1);
     connect(level_, &QDoubleSpinBox::valueChanged, this, &TraceView::refresh);
     connect(ctl_, &CaseController::imageChanged, this, &TraceView::refresh);
+    connect(ctl_, &CaseController::referenceChanged, this, &TraceView::refresh);
+    connect(ctl_, &CaseController::recipeChanged, this, &TraceView::refresh);
     connect(ctl_, &CaseController::captureChanged, this, [this] {
         const auto& h = ctl_->header();
         tx_->setRange(0, std::max<int>(0, static_cast<int>(h.transmits()) - 1));
@@ -201,12 +208,29 @@ void TraceView::refresh() {
     const long ix = std::clamp<long>(std::lround((x_mm_ - f->x_m[0] * 1e3) / dx), 0, static_cast<long>(f->nx()) - 1);
     std::vector<double> z(f->nz());
     std::vector<float> col(f->nz());
+    const QString title =
+        tr("Amplitude at x = %1 mm, frame %2").arg(f->x_m[static_cast<size_t>(ix)] * 1e3, 0, 'f', 2).arg(ctl_->currentFrame() + 1);
+    const auto& amp = ctl_->tgcAmplitude();
+    if (ctl_->amplitudeReference() && amp.size() == db.size()) {
+        // dB of the TCG-corrected envelope re the case reference; the reporting level is re the reference too.
+        float top = -1e30f;
+        for (size_t iz = 0; iz < f->nz(); ++iz) {
+            z[iz] = f->z_m[iz] * 1e3;
+            const auto r = ctl_->dbReReference(amp[iz * f->nx() + static_cast<size_t>(ix)]);
+            col[iz] = r ? static_cast<float>(*r) : -1e3f;
+            top = std::max(top, col[iz]);
+        }
+        const double t = std::max(0.0, std::ceil(std::max<double>(top, level_->value()) / 6.0) * 6.0);
+        plot_->setTrace(std::move(z), std::move(col), t - ctl_->dynamicRangeDb(), level_->value(), depth_mm_, title, t,
+                        ctl_->amplitudeUnit());
+        if (!ctl_->referenceWarning().isEmpty()) plot_->setToolTip(ctl_->referenceWarning());
+        return;
+    }
     for (size_t iz = 0; iz < f->nz(); ++iz) {
         z[iz] = f->z_m[iz] * 1e3;
         col[iz] = db[iz * f->nx() + static_cast<size_t>(ix)];
     }
-    plot_->setTrace(std::move(z), std::move(col), -ctl_->dynamicRangeDb(), level_->value(), depth_mm_,
-                    tr("Amplitude at x = %1 mm, frame %2").arg(f->x_m[static_cast<size_t>(ix)] * 1e3, 0, 'f', 2).arg(ctl_->currentFrame() + 1));
+    plot_->setTrace(std::move(z), std::move(col), -ctl_->dynamicRangeDb(), level_->value(), depth_mm_, title);
 }
 
 void TraceView::refreshRf() {

@@ -21,9 +21,11 @@ class TracePlot : public QWidget {
     Q_OBJECT
 public:
     explicit TracePlot(QWidget* parent = nullptr);
-    /// dB values along depth (mm), the display floor (-dynamic range) and the reporting level.
+    /// dB values along depth (mm), the plot's floor and top (dB), the reporting level (dB, same
+    /// reference) and the unit text ("dB re frame peak", "dB re <reference>").
     void setTrace(std::vector<double> depth_mm, std::vector<float> db, double floor_db, double level_db,
-                  double cursor_depth_mm, const QString& title);
+                  double cursor_depth_mm, const QString& title, double top_db = 0,
+                  const QString& unit = QStringLiteral("dB re frame peak"));
     /// Raw RF samples against time (µs); empty hides the RF strip.
     void setRf(std::vector<float> rf, double t0_us, double dt_us, const QString& title);
 
@@ -33,7 +35,8 @@ protected:
 private:
     std::vector<double> depth_;
     std::vector<float> db_;
-    double floor_ = -60, level_ = -12, cursor_ = -1;
+    double floor_ = -60, top_ = 0, level_ = -12, cursor_ = -1;
+    QString unit_;
     QString title_;
     std::vector<float> rf_;
     double rf_t0_ = 0, rf_dt_ = 1;

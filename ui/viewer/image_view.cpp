@@ -19,12 +19,13 @@ QString toolName(Tool t) {
         case Tool::DepthMarker: return QStringLiteral("depth marker");
         case Tool::ExtentBox: return QStringLiteral("extent box");
         case Tool::Ellipse: return QStringLiteral("ellipse");
+        case Tool::DropSizing: return QStringLiteral("-6 dB sizing");
     }
     return {};
 }
 
 Tool toolFromName(const QString& n) {
-    for (Tool t : {Tool::Caliper, Tool::DepthMarker, Tool::ExtentBox, Tool::Ellipse})
+    for (Tool t : {Tool::Caliper, Tool::DepthMarker, Tool::ExtentBox, Tool::Ellipse, Tool::DropSizing})
         if (toolName(t) == n) return t;
     return Tool::Select;
 }
@@ -141,6 +142,13 @@ Scene ImageView::scene() const {
     s.dynamic_range_db = ctl_->dynamicRangeDb();
     s.colour_map = ctl_->colourMap();
     s.measurements = shownMeasurements();
+    for (const auto& m : s.measurements)
+        if (m.kind == core::MeasurementKind::DropSizing) {
+            if (const auto d = ctl_->dropSizing(m); d && d->found) {
+                s.drop_sizings[m.id] = *d;
+                s.quantities[m.id] = ctl_->quantities(m);
+            }
+        }
     s.uncertainty = ctl_->uncertaintyModel();
     s.selected = ctl_->selectedMeasurement();
     for (const auto& f : ctl_->findings())
@@ -210,7 +218,7 @@ std::optional<std::pair<std::string, int>> ImageView::hit(const QPointF& px) con
             on = std::hypot(q.x() - px.x(), q.y() - px.y()) < 5;
         } else if (m.kind == core::MeasurementKind::DepthMarker && p.size() == 1) {
             on = std::abs(px.y() - p[0].y()) < 4;
-        } else if (m.kind == core::MeasurementKind::ExtentBox && p.size() == 2) {
+        } else if ((m.kind == core::MeasurementKind::ExtentBox || m.kind == core::MeasurementKind::DropSizing) && p.size() == 2) {
             on = QRectF(p[0], p[1]).normalized().adjusted(-3, -3, 3, 3).contains(px);
         } else if (m.kind == core::MeasurementKind::Ellipse && p.size() == 3) {
             const QPointF a1 = p[1] - p[0], a2 = p[2] - p[0], d = px - p[0];
@@ -291,6 +299,7 @@ void ImageView::mousePressEvent(QMouseEvent* e) {
         case Tool::Caliper: m.kind = core::MeasurementKind::Caliper; m.points = {p, p}; drag_index_ = 1; break;
         case Tool::DepthMarker: m.kind = core::MeasurementKind::DepthMarker; m.points = {p}; drag_index_ = 0; break;
         case Tool::ExtentBox: m.kind = core::MeasurementKind::ExtentBox; m.points = {p, p}; drag_index_ = 1; break;
+        case Tool::DropSizing: m.kind = core::MeasurementKind::DropSizing; m.points = {p, p}; drag_index_ = 1; break;
         case Tool::Ellipse: m.kind = core::MeasurementKind::Ellipse; m.points = {p, p, p}; drag_index_ = 1; break;
         case Tool::Select: break;
     }

@@ -36,6 +36,7 @@ QColor measurementColour(core::MeasurementKind kind) {
         case core::MeasurementKind::DepthMarker: return QColor(255, 214, 102);
         case core::MeasurementKind::ExtentBox: return QColor(140, 240, 160);
         case core::MeasurementKind::Ellipse: return QColor(255, 150, 200);
+        case core::MeasurementKind::DropSizing: return QColor(255, 170, 90);
     }
     return Qt::white;
 }
@@ -46,13 +47,17 @@ std::vector<QPointF> measurementHandles(const core::Measurement& m) {
     return h;
 }
 
-QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u) {
+QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u, const std::vector<core::Quantity>* given) {
     QString name = QString::fromStdString(m.label.empty() ? m.id : m.label);
     std::vector<core::Quantity> q;
-    try {
-        q = core::evaluate(m, u);
-    } catch (const std::exception&) {
-        return name;
+    if (given) {
+        q = *given;
+    } else {
+        try {
+            q = core::evaluate(m, u);
+        } catch (const std::exception&) {
+            return name;
+        }
     }
     QStringList parts;
     auto pick = [&](const char* n) {
@@ -64,6 +69,11 @@ QString measurementLabel(const core::Measurement& m, const core::UncertaintyMode
         case core::MeasurementKind::DepthMarker: pick("depth"); break;
         case core::MeasurementKind::ExtentBox: pick("length"); pick("height"); break;
         case core::MeasurementKind::Ellipse: pick("axis 1"); pick("axis 2"); break;
+        case core::MeasurementKind::DropSizing:
+            pick("length −6 dB");
+            pick("height −6 dB");
+            if (parts.size() == 2) parts[1] += QStringLiteral(" (−6 dB)");
+            break;
     }
     if (parts.isEmpty() && !q.empty()) parts << QString::fromStdString(core::formatQuantity(q.back()));
     return name + "  " + parts.join(" × ");
@@ -134,6 +144,49 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
                 label_at = QPointF(std::max(px[0].x(), px[1].x()), std::min(px[0].y(), px[1].y()));
             }
             break;
+        case core::MeasurementKind::DropSizing:
+            if (px.size() >= 2) {
+                // The search box, thin and dashed; the −6 dB extents as a cross with end ticks
+                // (an open edge — not reached inside the box — gets an arrow-like open tick).
+                const QRectF box = QRectF(px[0], px[1]).normalized();
+                QPen dash(col, 0.8 * k, Qt::DashLine);
+                p.setPen(dash);
+                p.drawRect(box);
+                p.setPen(pen);
+                label_at = QPointF(box.right(), box.top());
+                auto it = sc.drop_sizings.find(m.id);
+                if (it != sc.drop_sizings.end() && it->second.found) {
+                    const auto& d = it->second;
+                    const QPointF l = vt.toPixel(QPointF(d.left_x_mm, d.peak_z_mm));
+                    const QPointF r = vt.toPixel(QPointF(d.right_x_mm, d.peak_z_mm));
+                    const QPointF t = vt.toPixel(QPointF(d.peak_x_mm, d.top_z_mm));
+                    const QPointF b = vt.toPixel(QPointF(d.peak_x_mm, d.bottom_z_mm));
+                    p.drawLine(l, r);
+                    p.drawLine(t, b);
+                    const double tk = 6 * k;
+                    auto vtick = [&](QPointF at, bool open, double dir) {
+                        if (open) {
+                            p.drawLine(at, at + QPointF(-dir * tk, -tk));
+                            p.drawLine(at, at + QPointF(-dir * tk, tk));
+                        } else {
+                            p.drawLine(at + QPointF(0, -tk), at + QPointF(0, tk));
+                        }
+                    };
+                    auto htick = [&](QPointF at, bool open, double dir) {
+                        if (open) {
+                            p.drawLine(at, at + QPointF(-tk, -dir * tk));
+                            p.drawLine(at, at + QPointF(tk, -dir * tk));
+                        } else {
+                            p.drawLine(at + QPointF(-tk, 0), at + QPointF(tk, 0));
+                        }
+                    };
+                    vtick(l, d.left_open, -1);
+                    vtick(r, d.right_open, 1);
+                    htick(t, d.top_open, -1);
+                    htick(b, d.bottom_open, 1);
+                }
+            }
+            break;
         case core::MeasurementKind::Ellipse:
             if (px.size() >= 3) {
                 const QPointF c = px[0];
@@ -159,7 +212,8 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
     p.setBrush(sel ? Qt::white : col);
     const double hs = (sel ? 4.0 : 3.0) * k;
     for (const auto& h : px) p.drawRect(QRectF(h.x() - hs, h.y() - hs, 2 * hs, 2 * hs));
-    QString text = measurementLabel(m, sc.uncertainty);
+    auto qit = sc.quantities.find(m.id);
+    QString text = measurementLabel(m, sc.uncertainty, qit == sc.quantities.end() ? nullptr : &qit->second);
     auto it = sc.finding_numbers.find(m.id);
     if (it != sc.finding_numbers.end()) text = QStringLiteral("F%1 · ").arg(it->second) + text;
     drawLabel(p, label_at, text, sel ? Qt::white : col, k, vt.viewport());

@@ -15,6 +15,7 @@
 #include <string>
 #include <vector>
 
+#include "core/drop_sizing.h"
 #include "core/measurement.h"
 #include "ui/viewer/view_transform.h"
 
@@ -31,6 +32,9 @@ struct Scene {
     QString selected;                               ///< selected measurement id
     std::map<std::string, int> finding_numbers;     ///< measurement id -> finding number
     QString message;                                ///< shown centred when there is no image
+    /// Quantities per measurement id when they need the image (−6 dB sizing); else evaluate().
+    std::map<std::string, std::vector<core::Quantity>> quantities;
+    std::map<std::string, core::DropSizing> drop_sizings;  ///< −6 dB sizing results by measurement id
 };
 
 /// Layout and look of one rendering.
@@ -54,7 +58,9 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& view, con
                 const SceneStyle& style);
 
 /// Short text for a measurement's label on the image: "M1  12.34 ± 0.12 mm".
-QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u);
+/// `q`: the measurement's quantities when known (−6 dB sizing), else core::evaluate is used.
+QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u,
+                         const std::vector<core::Quantity>* q = nullptr);
 /// Colour of a measurement kind on the image.
 QColor measurementColour(core::MeasurementKind kind);
 /// "Nice" tick step (1, 2 or 5 × 10^n) for about `count` ticks over `span`.
