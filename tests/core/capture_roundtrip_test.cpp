@@ -2,7 +2,7 @@
 // CaptureWriter -> CaptureReader round trip of every field of the capture file contract
 // (capture format v1): root attributes, /array (with and without the optional height),
 // each /transmit kind with delay_s and apodization, /receive, /medium with its optional
-// attributes and wedge, /scan, /truth with its frame attribute, /provenance, and /data/rf as
+// attributes and wedge, /scan, /truth with its frame and regions_json attributes, /provenance, and /data/rf as
 // int16 with a scale and as float32. All data are synthetic.
 #include <gtest/gtest.h>
 
@@ -66,6 +66,7 @@ CaptureHeader fullHeader(TransmitKind kind, SampleType type) {
     h.truth->scatterer_position_m = {{0, 0, 0.01}, {2e-3, 0, 0.02}, {-1e-3, 0, 0.015}};
     h.truth->scatterer_amplitude = {1.0, 0.25, 0.5};
     h.truth->frame = "array";
+    h.truth->regions_json = R"([{"kind":"disc","centre_m":[0,0,0.02],"diameter_m":0.004}])";
     h.provenance = {{"part_id", "SYN-RT-7"}, {"operator", "test operator (synthetic)"}, {"scenario", "round trip"}};
     h.frames = 2;
     h.samples = 50;
@@ -131,6 +132,7 @@ void expectSameHeader(const CaptureHeader& a, const CaptureHeader& b) {
         EXPECT_EQ(a.truth->scatterer_position_m, b.truth->scatterer_position_m);
         EXPECT_EQ(a.truth->scatterer_amplitude, b.truth->scatterer_amplitude);
         EXPECT_EQ(a.truth->frame, b.truth->frame);
+        EXPECT_EQ(a.truth->regions_json, b.truth->regions_json);
     }
     EXPECT_EQ(a.provenance, b.provenance);
     EXPECT_EQ(a.frames, b.frames);
