@@ -126,6 +126,7 @@ void FindingsPane::buildUi() {
     background_ = new QPlainTextEdit;
     background_->setObjectName(QStringLiteral("background"));
     background_->setMaximumHeight(70);
+    background_->setPlaceholderText(tr("Why the examination was ordered: the request, the procedure, what to look for."));
     cf->addWidget(background_);
     cf->addWidget(new QLabel(tr("Technique (from the capture and the recipe)")));
     technique_ = new QPlainTextEdit;

@@ -350,7 +350,7 @@ void MainWindow::buildStatusBar() {
     connect(ctl_, &CaseController::referenceChanged, this, &MainWindow::updateReferenceWarning);
     connect(ctl_, &CaseController::recipeChanged, this, &MainWindow::updateReferenceWarning);
     statusBar()->addWidget(readout_);
-    statusBar()->addWidget(ref_warning_, 1);
+    statusBar()->addPermanentWidget(ref_warning_);  // permanent: temporary messages never cover it
     statusBar()->addPermanentWidget(timing_);
     statusBar()->addPermanentWidget(progress_);
     statusBar()->addPermanentWidget(cancel_);
@@ -642,9 +642,21 @@ void MainWindow::setReferenceFromSelection() {
 
 void MainWindow::updateReferenceWarning() {
     const QString w = ctl_->referenceWarning();
-    ref_warning_->setText(w);
-    ref_warning_->setToolTip(w);
-    ref_warning_->setVisible(!w.isEmpty());
+    const auto& ref = ctl_->amplitudeReference();
+    if (!w.isEmpty()) {
+        ref_warning_->setStyleSheet("color: #b3261e; font-weight: bold;");
+        ref_warning_->setText(w);
+    } else if (ref) {
+        ref_warning_->setStyleSheet("color: #3b4250;");
+        ref_warning_->setText(tr("0 dB = %1").arg(QString::fromStdString(ref->label)));
+    }
+    ref_warning_->setToolTip(ref ? tr("Amplitude reference: %1, linear amplitude %2 after TCG, taken at x = %3 mm, depth %4 mm")
+                                       .arg(QString::fromStdString(ref->label))
+                                       .arg(ref->amplitude, 0, 'g', 4)
+                                       .arg(ref->x_mm, 0, 'f', 1)
+                                       .arg(ref->z_mm, 0, 'f', 1)
+                                 : QString());
+    ref_warning_->setVisible(ref.has_value());
 }
 
 bool MainWindow::openDemo(const QString& dir) {
@@ -702,7 +714,7 @@ void MainWindow::demoAnnotate() {
     box.frame_index = ctl_->currentFrame();
     box.points = {{std::max(X(0), X(x0) - padx), std::max(Z(0), Z(z0) - padz)},
                   {std::min(X(nx - 1), X(x1) + padx), std::min(Z(nz - 1), Z(z1) + padz)}};
-    box.label = "−6 dB";
+    box.label = "flaw";
     const std::string box_id = ctl_->addMeasurement(box);
     core::Measurement cal;
     cal.kind = core::MeasurementKind::Caliper;

@@ -5,6 +5,7 @@
 #include <QDoubleSpinBox>
 #include <QHBoxLayout>
 #include <QLabel>
+#include <QFontMetricsF>
 #include <QPainter>
 #include <QPainterPath>
 #include <QSpinBox>
@@ -98,8 +99,13 @@ void TracePlot::paintEvent(QPaintEvent*) {
     p.setPen(lp);
     const double ly = Y(std::clamp(level_, floor_, top_));
     p.drawLine(QPointF(a.left(), ly), QPointF(a.right(), ly));
-    p.drawText(QRectF(a.right() - 260, ly - 15, 256, 14), Qt::AlignRight | Qt::AlignVCenter,
-               tr("reporting level %1 %2").arg(level_, 0, 'f', 1).arg(unit_));
+    // Label at the left end (near field: the trace is usually low there), on its own background.
+    const QString lt = tr("reporting level %1 dB").arg(level_, 0, 'f', 1);
+    QRectF lr = QFontMetricsF(p.font()).boundingRect(lt).adjusted(-3, -1, 3, 1);
+    lr.moveTopLeft(QPointF(a.left() + 4, ly - lr.height() - 2));
+    if (lr.top() < a.top()) lr.moveTop(ly + 2);
+    p.fillRect(lr, QColor(250, 250, 248, 220));
+    p.drawText(lr, Qt::AlignCenter, lt);
     if (cursor_ >= z0 && cursor_ <= z1) {
         p.setPen(QPen(QColor(120, 120, 120), 1, Qt::DotLine));
         p.drawLine(QPointF(X(cursor_), a.top()), QPointF(X(cursor_), a.bottom()));
