@@ -40,7 +40,10 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
         bool here = false;
         for (const auto& id : f.indication.measurement_ids)
             for (const auto& m : scene.measurements) here = here || m.id == id;
-        if (here) fs << QStringLiteral("F%1: %2").arg(f.number).arg(QString::fromStdString(f.indication.location));
+        if (!here) continue;
+        QString t = QStringLiteral("F%1: %2").arg(f.number).arg(QString::fromStdString(f.indication.location));
+        if (f.indication.peak_db) t += QStringLiteral(", peak %1 dB").arg(*f.indication.peak_db, 0, 'f', 1);
+        fs << t;
     }
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
     if (ctl.amplitudeReference()) {
