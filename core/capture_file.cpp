@@ -236,6 +236,20 @@ void parseHeader(hid_t file, HeaderParse& out) {
         if (d->size() != 4) { add("/data/rf", "has rank " + std::to_string(d->size()) + "; expected [N_frames, N_tx, N_rx, N_samples]"); return; }
         h.frames = (*d)[0];
         h.samples = (*d)[3];
+        {
+            // A chunk is decompressed whole: bound it so a crafted layout cannot force gigabytes.
+            Hid dcpl(H5Dget_create_plist(ds.get()));
+            if (dcpl && H5Pget_layout(dcpl.get()) == H5D_CHUNKED) {
+                hsize_t chunk[4] = {0, 0, 0, 0};
+                if (H5Pget_chunk(dcpl.get(), 4, chunk) == 4) {
+                    double bytes = double(sz);
+                    for (hsize_t c : chunk) bytes *= double(c);
+                    if (bytes > double(CaptureLimits::max_block_bytes))
+                        add("/data/rf", "chunks of " + std::to_string(static_cast<long long>(bytes / (1 << 20))) + " MiB exceed the limit of " +
+                                            std::to_string(CaptureLimits::max_block_bytes >> 20) + " MiB");
+                }
+            }
+        }
         if (tx_ok && (*d)[1] != h.transmit.count())
             add("/data/rf", "has " + std::to_string((*d)[1]) + " transmit events; /transmit lists " + std::to_string(h.transmit.count()));
         if (rx_ok && (*d)[2] != h.receive.element_index.size())

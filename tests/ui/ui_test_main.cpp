@@ -1,11 +1,14 @@
 // SPDX-License-Identifier: MIT
 // main() for the workstation tests: a QApplication on the offscreen platform, then GoogleTest.
 #include <QApplication>
+#include <QStandardPaths>
 
 #include <gtest/gtest.h>
 
 int main(int argc, char** argv) {
     if (qEnvironmentVariableIsEmpty("QT_QPA_PLATFORM")) qputenv("QT_QPA_PLATFORM", "offscreen");
+    // Keep the tests out of the user's real settings and auto-save folders.
+    QStandardPaths::setTestModeEnabled(true);
     QApplication app(argc, argv);
     ::testing::InitGoogleTest(&argc, argv);
     return RUN_ALL_TESTS();
