@@ -138,6 +138,9 @@ int cmdReconstruct(const Argv& argv) {
             threads = int(v);
         }
         const std::string path = a.positional()[0];
+        // The header is checked in a child process first: a damaged file that would crash the
+        // HDF5 library becomes a clear error instead.
+        if (auto problems = checkCaptureIsolated(path, false); !problems.empty()) throw core::InputError(path, problems);
         core::CaptureReader cap(path);
         const auto& h = cap.header();
         const auto frames = parseFrames(a.value("--frames").value_or("all"), h.frames);

@@ -49,7 +49,7 @@ const std::vector<std::string> kCases = {
     "format_image", "format_unknown", "version_2", "version_0", "transmit_kind_unknown",
     "plane_wave_without_angles",
     "rf_1e12_samples", "rf_1e9_frames", "element_positions_1e9", "element_positions_1e6",
-    "delay_1e12", "start_time_1e9", "truth_1e9", "scan_1e9",
+    "delay_1e12", "start_time_1e9", "truth_1e9", "rf_chunk_2gib", "scan_1e9",
     "empty_transmit_list", "source_element_too_big", "source_element_negative",
     "element_index_too_big", "element_index_negative", "rf_vs_kind_follow_on",
     "rf_int32", "rf_float64", "rf_uint16", "rf_nan_sample",
