@@ -86,6 +86,30 @@ QLabel* quietLabel(const QString& name) {
     return l;
 }
 
+/// A finding level that can be locked: a titled box holding a line saying why it is locked and
+/// the fields, laid out as a form.
+struct LevelBox {
+    QGroupBox* box;
+    QLabel* lock;
+    QWidget* fields;
+    QFormLayout* form;
+};
+
+LevelBox makeLevelBox(const QString& title, const QString& name) {
+    LevelBox b;
+    b.box = new QGroupBox(title);
+    b.box->setObjectName(name + QStringLiteral("Group"));
+    auto* layout = new QVBoxLayout(b.box);
+    b.lock = quietLabel(name + QStringLiteral("Lock"));
+    layout->addWidget(b.lock);
+    b.fields = new QWidget;
+    b.fields->setObjectName(name + QStringLiteral("Fields"));
+    b.form = new QFormLayout(b.fields);
+    b.form->setContentsMargins(0, 0, 0, 0);
+    layout->addWidget(b.fields);
+    return b;
+}
+
 }  // namespace
 
 QString FindingsPane::cautionText() {
@@ -215,15 +239,10 @@ void FindingsPane::buildUi() {
     inf->addRow(QString(), hedge_note_);
     ev->addWidget(indication_box_);
 
-    interpretation_box_ = new QGroupBox(tr("2  Interpretation: what it is"));
-    interpretation_box_->setObjectName(QStringLiteral("interpretationGroup"));
-    auto* iv = new QVBoxLayout(interpretation_box_);
-    interpretation_lock_ = quietLabel(QStringLiteral("interpretationLock"));
-    iv->addWidget(interpretation_lock_);
-    interpretation_fields_ = new QWidget;
-    interpretation_fields_->setObjectName(QStringLiteral("interpretationFields"));
-    auto* iff = new QFormLayout(interpretation_fields_);
-    iff->setContentsMargins(0, 0, 0, 0);
+    const LevelBox ib = makeLevelBox(tr("2  Interpretation: what it is"), QStringLiteral("interpretation"));
+    interpretation_box_ = ib.box;
+    interpretation_lock_ = ib.lock;
+    interpretation_fields_ = ib.fields;
     interpretation_ = new QComboBox;
     interpretation_->setObjectName(QStringLiteral("interpretationClass"));
     for (auto i : {core::Interpretation::Unset, core::Interpretation::False, core::Interpretation::NonRelevant,
@@ -232,20 +251,14 @@ void FindingsPane::buildUi() {
     reason_ = new QLineEdit;
     reason_->setObjectName(QStringLiteral("interpretationReason"));
     reason_->setPlaceholderText(tr("why: what shows it"));
-    iff->addRow(tr("Class"), interpretation_);
-    iff->addRow(tr("Reason"), reason_);
-    iv->addWidget(interpretation_fields_);
+    ib.form->addRow(tr("Class"), interpretation_);
+    ib.form->addRow(tr("Reason"), reason_);
     ev->addWidget(interpretation_box_);
 
-    evaluation_box_ = new QGroupBox(tr("3  Evaluation: against the criterion"));
-    evaluation_box_->setObjectName(QStringLiteral("evaluationGroup"));
-    auto* evv = new QVBoxLayout(evaluation_box_);
-    evaluation_lock_ = quietLabel(QStringLiteral("evaluationLock"));
-    evv->addWidget(evaluation_lock_);
-    evaluation_fields_ = new QWidget;
-    evaluation_fields_->setObjectName(QStringLiteral("evaluationFields"));
-    auto* eff = new QFormLayout(evaluation_fields_);
-    eff->setContentsMargins(0, 0, 0, 0);
+    const LevelBox eb = makeLevelBox(tr("3  Evaluation: against the criterion"), QStringLiteral("evaluation"));
+    evaluation_box_ = eb.box;
+    evaluation_lock_ = eb.lock;
+    evaluation_fields_ = eb.fields;
     evaluation_ = new QComboBox;
     evaluation_->setObjectName(QStringLiteral("evaluationOutcome"));
     for (auto e : {core::Evaluation::Unset, core::Evaluation::Acceptable, core::Evaluation::Rejectable,
@@ -254,9 +267,8 @@ void FindingsPane::buildUi() {
     criterion_ = new QLineEdit;
     criterion_->setObjectName(QStringLiteral("criterion"));
     criterion_->setPlaceholderText(tr("the acceptance criterion used (procedure, clause, limit)"));
-    eff->addRow(tr("Outcome"), evaluation_);
-    eff->addRow(tr("Criterion"), criterion_);
-    evv->addWidget(evaluation_fields_);
+    eb.form->addRow(tr("Outcome"), evaluation_);
+    eb.form->addRow(tr("Criterion"), criterion_);
     ev->addWidget(evaluation_box_);
     v->addWidget(editor_);
 
