@@ -37,6 +37,15 @@ double halfWidth(const std::vector<double>& axis, const std::vector<float>& prof
     return xb - xa;
 }
 
+// Sets the image region (mm) and, when step_mm > 0, the pixel step.
+void setRegion(core::Recipe& r, double x0, double x1, double z0, double z1, double step_mm = 0) {
+    r.setNumber("grid.x_min_mm", x0);
+    r.setNumber("grid.x_max_mm", x1);
+    r.setNumber("grid.z_min_mm", z0);
+    r.setNumber("grid.z_max_mm", z1);
+    if (step_mm > 0) r.setNumber("grid.step_mm", step_mm);
+}
+
 core::Frame reconstruct(const std::string& path, core::Recipe r) {
     core::CaptureReader cap(path);
     recon::Reconstructor rec(cap, r, 2);
@@ -59,11 +68,7 @@ TEST(psf_test, tfm_point_position_lateral_and_axial_widths) {
     r.setNumber("das.f_number", F);
     r.setText("das.apodization", "rectangular");
     r.setText("das.interpolation", "cubic");
-    r.setNumber("grid.x_min_mm", -1.5);
-    r.setNumber("grid.x_max_mm", 1.9);
-    r.setNumber("grid.z_min_mm", 11.0);
-    r.setNumber("grid.z_max_mm", 13.0);
-    r.setNumber("grid.step_mm", 0.01);
+    setRegion(r, -1.5, 1.9, 11.0, 13.0, 0.01);
     const auto f = reconstruct(path, r);
     const auto pk = findPeak(f);
     const double lambda = s.c / s.f0;
@@ -95,11 +100,7 @@ TEST(psf_test, plane_wave_single_angle_lateral_width_is_one_way) {
     const double F = 2.0;
     r.setNumber("das.f_number", F);
     r.setText("das.apodization", "rectangular");
-    r.setNumber("grid.x_min_mm", -2.0);
-    r.setNumber("grid.x_max_mm", 2.0);
-    r.setNumber("grid.z_min_mm", 11.0);
-    r.setNumber("grid.z_max_mm", 13.0);
-    r.setNumber("grid.step_mm", 0.01);
+    setRegion(r, -2.0, 2.0, 11.0, 13.0, 0.01);
     const auto f = reconstruct(path, r);
     const auto pk = findPeak(f);
     const double lambda = s.c / s.f0;
@@ -121,10 +122,7 @@ TEST(psf_test, default_grid_keeps_amplitude_fidelity_within_2db) {
     testutil::SynthSpec s;
     const auto h = testutil::makeHeader(s);
     auto r = recon::defaultRecipe();  // f-number 1, Hann
-    r.setNumber("grid.x_min_mm", -2);
-    r.setNumber("grid.x_max_mm", 2);
-    r.setNumber("grid.z_min_mm", 6);
-    r.setNumber("grid.z_max_mm", 8);
+    setRegion(r, -2, 2, 6, 8);
     const auto g = recon::resolveGrid(h, r);
     const double lambda = s.c / s.f0;
     const double loss = recon::amplitudeFidelityDb(h, r, g);
@@ -141,16 +139,8 @@ TEST(psf_test, default_grid_keeps_amplitude_fidelity_within_2db) {
     testutil::writePointCapture(path, s, {{x0, z0, 1.0}});
     auto on = r, off = r;
     const double st = g.step_m * 1e3;
-    on.setNumber("grid.step_mm", st);
-    on.setNumber("grid.x_min_mm", -20 * st);
-    on.setNumber("grid.x_max_mm", 20 * st);
-    on.setNumber("grid.z_min_mm", 7.0 - 10 * st);
-    on.setNumber("grid.z_max_mm", 7.0 + 10 * st);
-    off.setNumber("grid.step_mm", st);
-    off.setNumber("grid.x_min_mm", -20.5 * st);
-    off.setNumber("grid.x_max_mm", 20 * st);
-    off.setNumber("grid.z_min_mm", 7.0 - 10.5 * st);
-    off.setNumber("grid.z_max_mm", 7.0 + 10 * st);
+    setRegion(on, -20 * st, 20 * st, 7.0 - 10 * st, 7.0 + 10 * st, st);
+    setRegion(off, -20.5 * st, 20 * st, 7.0 - 10.5 * st, 7.0 + 10 * st, st);
     const double p_on = findPeak(reconstruct(path, on)).v, p_off = findPeak(reconstruct(path, off)).v;
     const double measured = 20 * std::log10(p_on / p_off);
     std::printf("fidelity: step %.4f mm = lambda/%.2f, model %.2f dB, beamformed %.2f dB\n", g.step_m * 1e3, lambda / g.step_m, loss,
@@ -173,10 +163,7 @@ TEST(psf_test, achieved_loss_tracks_the_fidelity_target) {
     for (double target : {0.5, 1.0, 2.0}) {
         auto r = recon::defaultRecipe();
         r.setNumber("grid.max_loss_db", target);
-        r.setNumber("grid.x_min_mm", -2);
-        r.setNumber("grid.x_max_mm", 2);
-        r.setNumber("grid.z_min_mm", 6);
-        r.setNumber("grid.z_max_mm", 8);
+        setRegion(r, -2, 2, 6, 8);
         const auto g = recon::resolveGrid(h, r);
         const double model = recon::amplitudeFidelityDb(h, r, g);
         EXPECT_LE(model, target + 1e-9) << "target " << target;
@@ -184,16 +171,8 @@ TEST(psf_test, achieved_loss_tracks_the_fidelity_target) {
         if (target == 1.0) step_1db = g.step_m;
         auto on = r, off = r;
         const double st = g.step_m * 1e3;
-        on.setNumber("grid.step_mm", st);
-        on.setNumber("grid.x_min_mm", -20 * st);
-        on.setNumber("grid.x_max_mm", 20 * st);
-        on.setNumber("grid.z_min_mm", 7.0 - 10 * st);
-        on.setNumber("grid.z_max_mm", 7.0 + 10 * st);
-        off.setNumber("grid.step_mm", st);
-        off.setNumber("grid.x_min_mm", -20.5 * st);
-        off.setNumber("grid.x_max_mm", 20 * st);
-        off.setNumber("grid.z_min_mm", 7.0 - 10.5 * st);
-        off.setNumber("grid.z_max_mm", 7.0 + 10 * st);
+        setRegion(on, -20 * st, 20 * st, 7.0 - 10 * st, 7.0 + 10 * st, st);
+        setRegion(off, -20.5 * st, 20 * st, 7.0 - 10.5 * st, 7.0 + 10 * st, st);
         const double measured = 20 * std::log10(findPeak(reconstruct(path, on)).v / findPeak(reconstruct(path, off)).v);
         std::printf("fidelity target %.2f dB: step %.4f mm, model %.2f dB, beamformed %.2f dB\n", target, g.step_m * 1e3, model,
                     measured);
@@ -226,11 +205,7 @@ TEST(psf_test, virtual_source_point_position) {
         const auto path = testutil::tempPath("psf_vs.h5");
         testutil::writePointCapture(path, s, {{x0, z0, 1.0}});
         auto r = recon::defaultRecipe();
-        r.setNumber("grid.x_min_mm", -1.5);
-        r.setNumber("grid.x_max_mm", 1.5);
-        r.setNumber("grid.z_min_mm", 9);
-        r.setNumber("grid.z_max_mm", 11);
-        r.setNumber("grid.step_mm", 0.01);
+        setRegion(r, -1.5, 1.5, 9, 11, 0.01);
         const auto f = reconstruct(path, r);
         const auto pk = findPeak(f);
         const double lambda = s.c / s.f0;
