@@ -1,9 +1,6 @@
 // SPDX-License-Identifier: MIT
 #include "core/case_file.h"
 
-#include <fcntl.h>
-#include <unistd.h>
-
 #include <cerrno>
 #include <cmath>
 #include <cstring>
@@ -13,6 +10,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "core/atomic_file.h"
 #include "core/capture_file.h"
 #include "core/error.h"
 
@@ -260,7 +258,6 @@ std::string folderOf(const std::string& path) {
     return abs.parent_path().string();
 }
 
-std::string errnoText(int e) { return std::strerror(e); }
 
 }  // namespace
 
@@ -416,44 +413,7 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
 void saveCase(const std::string& path, const CaseDocument& doc) {
     const std::string folder = folderOf(path);
     const std::string text = caseToJson(doc, folder);
-    // The temporary file sits beside the target so the final rename stays on one file system.
-    const std::string tmp = path + ".saving";
-    const int fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
-    if (fd < 0) {
-        const int e = errno;
-        throw InputError(path, "", "cannot be saved: cannot create temporary file " + tmp + ": " + errnoText(e));
-    }
-    auto failAndClean = [&](const std::string& what, int e) {
-        ::close(fd);
-        ::unlink(tmp.c_str());
-        throw InputError(path, "", "cannot be saved: " + what + ": " + errnoText(e));
-    };
-    size_t done = 0;
-    while (done < text.size()) {
-        const ssize_t n = ::write(fd, text.data() + done, text.size() - done);
-        if (n < 0) {
-            if (errno == EINTR) continue;
-            failAndClean("writing " + tmp, errno);
-        }
-        done += size_t(n);
-    }
-    if (::fsync(fd) != 0) failAndClean("flushing " + tmp + " to disk", errno);
-    if (::close(fd) != 0) {
-        const int e = errno;
-        ::unlink(tmp.c_str());
-        throw InputError(path, "", "cannot be saved: closing " + tmp + ": " + errnoText(e));
-    }
-    if (::rename(tmp.c_str(), path.c_str()) != 0) {
-        const int e = errno;
-        ::unlink(tmp.c_str());
-        throw InputError(path, "", "cannot be saved: renaming " + tmp + " over it: " + errnoText(e));
-    }
-    // Make the rename itself durable (best effort: some file systems refuse fsync on folders).
-    const int dfd = ::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-    if (dfd >= 0) {
-        (void)::fsync(dfd);
-        ::close(dfd);
-    }
+    writeFileAtomic(path, text, ".saving");
 }
 
 CaseDocument loadCase(const std::string& path) {

@@ -37,37 +37,120 @@ Frame ImageStack::frame(size_t i) const {
     return f;
 }
 
-void writeImageFile(const std::string& path, const ImageStack& img) {
+namespace {
+void check(herr_t r, const std::string& path, const std::string& what) {
+    if (r < 0) throw InputError(path, "/image/envelope", "cannot " + what + " (disk full or not writable?)");
+}
+}  // namespace
+
+struct ImageWriter::Impl {
+    Hid file, envelope;
+    size_t nx = 0, nz = 0;
+    std::string partial;
+    std::string sha256;
+    bool finished = false;
+};
+
+ImageWriter::ImageWriter(const std::string& path, const std::vector<double>& x_m, const std::vector<double>& z_m,
+                         const std::string& recipe_json)
+    : impl_(new Impl), path_(path) {
     std::lock_guard lock(hdf5Mutex());
     silenceHdf5();
-    const std::string partial = path + ".partial";
-    const size_t nx = img.x_m.size(), nz = img.z_m.size();
-    if (img.envelope.size() != img.frames * nx * nz)
-        throw InputError(path, "/image/envelope", "size does not match frames x N_z x N_x");
-    {
-        Hid f(H5Fcreate(partial.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT));
-        if (!f) throw InputError(path, "", "cannot create the file (directory missing or not writable?)");
+    Impl& I = *impl_;
+    I.nx = x_m.size();
+    I.nz = z_m.size();
+    I.partial = path + ".partial";
+    try {
+        if (I.nx == 0 || I.nz == 0) throw InputError(path, "/image", "an image needs at least one pixel along x and z");
+        I.file = Hid(H5Fcreate(I.partial.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT));
+        if (!I.file) throw InputError(path, "", "cannot create the file (directory missing or not writable?)");
         try {
-            writeStringAttr(f.get(), "umbra_format", "image");
-            writeIntAttr(f.get(), "umbra_format_version", 1);
-            writeStringAttr(f.get(), "recipe_json", img.recipe_json);
-            writeStringAttr(f.get(), "capture_sha256", img.capture_sha256);
-            Hid g = createGroup(f.get(), "image");
-            writeFloats(g.get(), "envelope", img.envelope.data(), {img.frames, nz, nx});
-            writeDoubles(g.get(), "x_m", img.x_m.data(), {nx});
-            writeDoubles(g.get(), "z_m", img.z_m.data(), {nz});
-        } catch (const std::exception& e) {
-            f.reset();
-            std::remove(partial.c_str());
+            writeStringAttr(I.file.get(), "umbra_format", "image");
+            writeIntAttr(I.file.get(), "umbra_format_version", 1);
+            writeStringAttr(I.file.get(), "recipe_json", recipe_json);
+            Hid g = createGroup(I.file.get(), "image");
+            writeDoubles(g.get(), "x_m", x_m.data(), {I.nx});
+            writeDoubles(g.get(), "z_m", z_m.data(), {I.nz});
+            // [N_frames, N_z, N_x], growing by one frame per append; one chunk per frame, so
+            // HDF5 never holds more than a frame in memory.
+            const hsize_t dims[3] = {0, I.nz, I.nx}, maxdims[3] = {H5S_UNLIMITED, I.nz, I.nx}, chunk[3] = {1, I.nz, I.nx};
+            Hid sp(H5Screate_simple(3, dims, maxdims));
+            Hid dcpl = creationPlist(H5P_DATASET_CREATE);
+            if (!sp || H5Pset_chunk(dcpl.get(), 3, chunk) < 0) throw std::runtime_error("cannot set up /image/envelope");
+            I.envelope = Hid(H5Dcreate2(g.get(), "envelope", H5T_IEEE_F32LE, sp.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT));
+            if (!I.envelope) throw std::runtime_error("cannot create /image/envelope");
+        } catch (const std::runtime_error& e) {
+            if (dynamic_cast<const InputError*>(&e)) throw;
             throw InputError(path, "", e.what());
         }
+    } catch (...) {
+        I.envelope.reset();
+        I.file.reset();
+        std::remove(I.partial.c_str());
+        delete impl_;
+        throw;
     }
-    std::error_code ec;
-    std::filesystem::rename(partial, path, ec);
-    if (ec) throw InputError(path, "", "cannot move the finished file into place: " + ec.message());
 }
 
-ImageStack readImageFile(const std::string& path) {
+ImageWriter::~ImageWriter() {
+    if (!impl_->finished) {
+        std::lock_guard lock(hdf5Mutex());
+        impl_->envelope.reset();
+        impl_->file.reset();
+        std::remove(impl_->partial.c_str());
+    }
+    delete impl_;
+}
+
+void ImageWriter::append(const float* envelope, size_t count) {
+    Impl& I = *impl_;
+    if (I.finished || !I.envelope) throw std::logic_error("ImageWriter::append after finish()");
+    if (count != I.nx * I.nz)
+        throw InputError(path_, "/image/envelope", "frame of " + std::to_string(count) + " values does not match N_z x N_x = " +
+                                                       std::to_string(I.nz) + " x " + std::to_string(I.nx));
+    std::lock_guard lock(hdf5Mutex());
+    const hsize_t size[3] = {frames_ + 1, I.nz, I.nx}, start[3] = {frames_, 0, 0}, one[3] = {1, I.nz, I.nx};
+    check(H5Dset_extent(I.envelope.get(), size), path_, "grow the dataset");
+    Hid fsp(H5Dget_space(I.envelope.get()));
+    Hid msp(H5Screate_simple(3, one, nullptr));
+    check(H5Sselect_hyperslab(fsp.get(), H5S_SELECT_SET, start, nullptr, one, nullptr), path_, "select the frame");
+    check(H5Dwrite(I.envelope.get(), H5T_NATIVE_FLOAT, msp.get(), fsp.get(), H5P_DEFAULT, envelope), path_, "write a frame");
+    ++frames_;
+}
+
+void ImageWriter::setCaptureSha256(const std::string& sha256) { impl_->sha256 = sha256; }
+
+void ImageWriter::finish() {
+    Impl& I = *impl_;
+    if (I.finished) return;
+    {
+        std::lock_guard lock(hdf5Mutex());
+        try {
+            writeStringAttr(I.file.get(), "capture_sha256", I.sha256);
+        } catch (const std::exception& e) {
+            throw InputError(path_, "/@capture_sha256", e.what());
+        }
+        I.envelope.reset();
+        if (H5Fclose(I.file.get()) < 0) throw InputError(path_, "", "cannot finish writing the file (disk full?)");
+        I.file = Hid();
+    }
+    std::error_code ec;
+    std::filesystem::rename(I.partial, path_, ec);
+    if (ec) throw InputError(path_, "", "cannot move the finished file into place: " + ec.message());
+    I.finished = true;
+}
+
+void writeImageFile(const std::string& path, const ImageStack& img) {
+    const size_t n = img.x_m.size() * img.z_m.size();
+    if (img.envelope.size() != img.frames * n) throw InputError(path, "/image/envelope", "size does not match frames x N_z x N_x");
+    ImageWriter w(path, img.x_m, img.z_m, img.recipe_json);
+    for (size_t i = 0; i < img.frames; ++i) w.append(img.envelope.data() + i * n, n);
+    w.setCaptureSha256(img.capture_sha256);
+    w.finish();
+}
+
+namespace {
+ImageStack readImage(const std::string& path, bool with_envelope) {
     std::lock_guard lock(hdf5Mutex());
     silenceHdf5();
     std::error_code ec;
@@ -100,9 +183,13 @@ ImageStack readImageFile(const std::string& path) {
         if (d->size() != 3 || (*d)[1] != z->size() || (*d)[2] != x->size())
             throw InputError(path, "/image/envelope", "shape does not match [N_frames, N_z, N_x] = [*, " +
                                                           std::to_string(z->size()) + ", " + std::to_string(x->size()) + "]");
+        dims = *d;
     }
-    auto e = readFloats(f.get(), "/image/envelope", 3, kMaxEnvelope, dims, err);
-    if (!e) throw InputError(path, "/image/envelope", err);
+    if (with_envelope) {
+        auto e = readFloats(f.get(), "/image/envelope", 3, kMaxEnvelope, dims, err);
+        if (!e) throw InputError(path, "/image/envelope", err);
+        img.envelope = std::move(*e);
+    }
     // Pixel centres: finite and strictly increasing (x to the right, z downwards).
     for (auto [axis, v] : {std::pair{"/image/x_m", &*x}, std::pair{"/image/z_m", &*z}}) {
         for (size_t i = 0; i < v->size(); ++i) {
@@ -114,8 +201,11 @@ ImageStack readImageFile(const std::string& path) {
     img.x_m = *x;
     img.z_m = *z;
     img.frames = dims[0];
-    img.envelope = std::move(*e);
     return img;
 }
+}  // namespace
+
+ImageStack readImageFile(const std::string& path) { return readImage(path, true); }
+ImageStack readImageFileHeader(const std::string& path) { return readImage(path, false); }
 
 }  // namespace umbra::core

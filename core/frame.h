@@ -34,10 +34,50 @@ struct ImageStack {
     Frame frame(size_t i) const;
 };
 
-/// Writes atomically (temporary file then rename). Throws InputError naming the file.
+/// Writes an image file one frame at a time, so memory stays at one frame whatever the number
+/// of frames: /image/envelope is a chunked dataset (one chunk per frame) that grows with each
+/// append(). The file is written to "PATH.partial" and renamed into place by finish(); the
+/// destructor removes the partial file if finish() was not called. The bytes depend only on
+/// the content (no object timestamps), so the same image always gives the same file.
+///
+///   ImageWriter w("out.image.h5", grid.xAxis(), grid.zAxis(), recipe.toJson());
+///   for (...) w.append(frame.envelope);     // [N_z][N_x] each
+///   w.setCaptureSha256(sha);
+///   w.finish();
+class ImageWriter {
+public:
+    /// Creates PATH.partial. Throws InputError naming `path` (folder missing, not writable,
+    /// empty axes).
+    ImageWriter(const std::string& path, const std::vector<double>& x_m, const std::vector<double>& z_m,
+                const std::string& recipe_json);
+    ~ImageWriter();
+    ImageWriter(const ImageWriter&) = delete;
+    ImageWriter& operator=(const ImageWriter&) = delete;
+
+    /// Appends one frame, [N_z][N_x] row-major linear envelope (exactly N_z x N_x values).
+    void append(const float* envelope, size_t count);
+    void append(const std::vector<float>& envelope) { append(envelope.data(), envelope.size()); }
+    /// SHA-256 of the capture (lowercase hex), stored by finish().
+    void setCaptureSha256(const std::string& sha256);
+    size_t frames() const { return frames_; }
+    /// Writes the remaining attributes, closes the file and renames it into place.
+    void finish();
+
+private:
+    struct Impl;
+    Impl* impl_;
+    std::string path_;
+    size_t frames_ = 0;
+};
+
+/// Writes atomically (temporary file then rename) through ImageWriter. Throws InputError
+/// naming the file.
 void writeImageFile(const std::string& path, const ImageStack& img);
 /// Reads and checks an image file (shape against the axes, axes finite and strictly
 /// increasing, at least one frame). Throws InputError naming the file and the problem.
 ImageStack readImageFile(const std::string& path);
+/// The same checks on everything but the envelope, which is not read (envelope stays empty;
+/// frames is the count in the file). For deciding whether an existing output is up to date.
+ImageStack readImageFileHeader(const std::string& path);
 
 }  // namespace umbra::core

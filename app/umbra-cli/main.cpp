@@ -15,6 +15,7 @@ const std::vector<Command>& commands() {
         {"validate", "check a capture against format v1; exit 2 listing each problem", cmdValidate},
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
+        {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
     };
     return table;
 }

@@ -213,7 +213,8 @@ void writeScalarAttr(hid_t obj, const std::string& name, hid_t filetype, hid_t m
 void writeDataset(hid_t loc, const std::string& name, hid_t filetype, hid_t memtype, const void* data,
                   const std::vector<hsize_t>& dims) {
     Hid sp = checkId(H5Screate_simple(int(dims.size()), dims.data(), nullptr), name);
-    Hid ds = checkId(H5Dcreate2(loc, name.c_str(), filetype, sp.get(), H5P_DEFAULT, H5P_DEFAULT, H5P_DEFAULT), name);
+    Hid dcpl = creationPlist(H5P_DATASET_CREATE);
+    Hid ds = checkId(H5Dcreate2(loc, name.c_str(), filetype, sp.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT), name);
     size_t n = 1;
     for (auto d : dims) n *= d;
     if (n) check(H5Dwrite(ds.get(), memtype, H5S_ALL, H5S_ALL, H5P_DEFAULT, data), name);
@@ -250,7 +251,13 @@ void writeFloats(hid_t loc, const std::string& name, const float* data, const st
     writeDataset(loc, name, H5T_IEEE_F32LE, H5T_NATIVE_FLOAT, data, dims);
 }
 Hid createGroup(hid_t loc, const std::string& name) {
-    return checkId(H5Gcreate2(loc, name.c_str(), H5P_DEFAULT, H5P_DEFAULT, H5P_DEFAULT), name);
+    Hid gcpl = creationPlist(H5P_GROUP_CREATE);
+    return checkId(H5Gcreate2(loc, name.c_str(), H5P_DEFAULT, gcpl.get(), H5P_DEFAULT), name);
+}
+Hid creationPlist(hid_t cls) {
+    Hid p = checkId(H5Pcreate(cls), "creation property list");
+    check(H5Pset_obj_track_times(p.get(), false), "creation property list");
+    return p;
 }
 
 }  // namespace umbra::core::detail

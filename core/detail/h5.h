@@ -72,6 +72,11 @@ void writeDoubleArrayAttr(hid_t obj, const std::string& name, const std::vector<
 void writeDoubles(hid_t loc, const std::string& name, const double* data, const std::vector<hsize_t>& dims);
 void writeInts(hid_t loc, const std::string& name, const int32_t* data, const std::vector<hsize_t>& dims);
 void writeFloats(hid_t loc, const std::string& name, const float* data, const std::vector<hsize_t>& dims);
+/// Groups and datasets are created without object timestamps (see creationPlist), so files
+/// with the same content have the same bytes.
 Hid createGroup(hid_t loc, const std::string& name);
+/// An object creation property list (H5P_DATASET_CREATE or H5P_GROUP_CREATE) that does not
+/// record access/modification times in the object header.
+Hid creationPlist(hid_t cls);
 
 }  // namespace umbra::core::detail
