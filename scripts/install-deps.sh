@@ -10,7 +10,7 @@ PACKAGES=(
   libopencv-dev
   libgtest-dev libgmock-dev googletest libbenchmark-dev
   python3 python3-numpy python3-scipy python3-h5py
-  xvfb xauth
+  xvfb xauth time
 )
 missing=()
 for p in "${PACKAGES[@]}"; do

@@ -94,10 +94,12 @@ Manifest readManifest(const std::string& path) {
     try {
         if (j.contains("recipe")) {
             if (!j["recipe"].is_object()) throw core::InputError(path, "recipe", "must be a JSON object of stages (as a saved recipe)");
-            m.recipe.mergeJson(j["recipe"].dump(), path + ": recipe");
+            m.recipe.mergeJson(j["recipe"].dump(), "recipe");
         }
     } catch (const core::SettingError& e) {
-        throw core::InputError(path, "recipe", e.what());
+        std::string what = e.what();
+        if (what.rfind("recipe: ", 0) == 0) what = what.substr(8);
+        throw core::InputError(path, "recipe", what);
     }
     if (j.contains("grid_mm")) {
         if (!j["grid_mm"].is_string()) throw core::InputError(path, "grid_mm", "must be text XMIN:XMAX:ZMIN:ZMAX:STEP (mm)");
@@ -251,8 +253,9 @@ int cmdBatch(const Argv& argv) {
     for (size_t i = shard.index - 1; i < m.captures.size(); i += shard.count) {
         Item it;
         it.index = i;
-        it.image = (fs::path(*out_dir) / (m.stems[i] + ".image.h5")).string();
-        if (m.png) it.png = (fs::path(*out_dir) / (m.stems[i] + ".png")).string();
+        const fs::path dir = fs::absolute(*out_dir, ec).lexically_normal();
+        it.image = (dir / (m.stems[i] + ".image.h5")).string();
+        if (m.png) it.png = (dir / (m.stems[i] + ".png")).string();
         items.push_back(it);
     }
     const std::string summary = (fs::path(*out_dir) / ("summary-" + std::to_string(shard.index) + "-of-" +

@@ -189,7 +189,7 @@ def case_damaged_bytes():
 def case_help():
     rc, out, err = run("--help")
     check(rc == 0 and "usage:" in out, f"umbra-cli --help exit {rc}")
-    for cmd in ("info", "validate", "simulate", "reconstruct"):
+    for cmd in ("info", "validate", "simulate", "reconstruct", "batch"):
         rc, out, err = run(cmd, "--help")
         check(rc == 0, f"{cmd} --help exit {rc}: {err.strip()}")
         check("usage:" in out, f"{cmd} --help prints a usage line")
@@ -197,7 +197,7 @@ def case_help():
 
 def case_usage_errors():
     path = capture()
-    for cmd in ("info", "validate", "simulate", "reconstruct"):
+    for cmd in ("info", "validate", "simulate", "reconstruct", "batch"):
         rc, out, err = run(cmd, "--no-such-option", path)
         check(rc == 2, f"{cmd} --no-such-option exit {rc}")
         check("--no-such-option" in err, f"{cmd}: message names the option: {err.strip()}")
