@@ -8,6 +8,10 @@
 #include <filesystem>
 #include <fstream>
 #include <stdexcept>
+#include <chrono>
+#include <iterator>
+#include <mutex>
+#include <thread>
 
 #include "core/capture_file.h"
 #include "core/detail/h5.h"
@@ -152,6 +156,78 @@ TEST(ImageFile, AxesMustBeFiniteAndIncreasing) {
     s.envelope.clear();
     writeImageFile(d.file("empty.h5"), s);
     EXPECT_NE(imageErrorOf(d.file("empty.h5")).find("no frames"), std::string::npos) << imageErrorOf(d.file("empty.h5"));
+}
+
+// ImageWriter appends frame by frame into a chunked dataset, one chunk per frame (HDF5 User's
+// Guide, "Chunking in HDF5": a chunk is the unit of I/O, so a frame is written without the
+// others in memory), and the result reads back exactly as the whole stack written at once.
+TEST(ImageFile, WriterAppendsOneFramePerChunk) {
+    TempDir d;
+    const auto s = sampleStack();
+    const std::string path = d.file("appended.h5");
+    {
+        ImageWriter w(path, s.x_m, s.z_m, s.recipe_json);
+        const size_t n = s.x_m.size() * s.z_m.size();
+        for (size_t i = 0; i < s.frames; ++i) {
+            w.append(s.envelope.data() + i * n, n);
+            EXPECT_TRUE(fs::exists(path + ".partial"));
+            EXPECT_FALSE(fs::exists(path));
+        }
+        EXPECT_EQ(w.frames(), s.frames);
+        w.setCaptureSha256(s.capture_sha256);
+        w.finish();
+    }
+    EXPECT_FALSE(fs::exists(path + ".partial"));
+    const auto r = readImageFile(path);
+    EXPECT_EQ(r.frames, s.frames);
+    EXPECT_EQ(r.envelope, s.envelope);
+    EXPECT_EQ(r.capture_sha256, s.capture_sha256);
+    const auto h = readImageFileHeader(path);
+    EXPECT_EQ(h.frames, s.frames);
+    EXPECT_TRUE(h.envelope.empty());
+    EXPECT_EQ(h.recipe_json, s.recipe_json);
+    using namespace umbra::core::detail;
+    std::lock_guard lock(hdf5Mutex());
+    Hid f(H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT));
+    Hid ds(H5Dopen2(f.get(), "/image/envelope", H5P_DEFAULT));
+    Hid dcpl(H5Dget_create_plist(ds.get()));
+    hsize_t chunk[3] = {0, 0, 0};
+    ASSERT_EQ(H5Pget_chunk(dcpl.get(), 3, chunk), 3);
+    EXPECT_EQ(chunk[0], 1u);
+    EXPECT_EQ(chunk[1], s.z_m.size());
+    EXPECT_EQ(chunk[2], s.x_m.size());
+}
+
+TEST(ImageFile, WriterRefusesWrongFrameSizeAndLeavesNothingUnfinished) {
+    TempDir d;
+    const auto s = sampleStack();
+    const std::string path = d.file("unfinished.h5");
+    {
+        ImageWriter w(path, s.x_m, s.z_m, s.recipe_json);
+        EXPECT_THROW(w.append(s.envelope.data(), 3), InputError);
+        w.append(s.envelope.data(), s.x_m.size() * s.z_m.size());
+    }  // never finished: nothing left behind
+    EXPECT_FALSE(fs::exists(path));
+    EXPECT_FALSE(fs::exists(path + ".partial"));
+    EXPECT_THROW(ImageWriter(d.file("none.h5"), {}, s.z_m, s.recipe_json), InputError);
+    EXPECT_THROW(ImageWriter((d.path / "no_such_folder" / "x.h5").string(), s.x_m, s.z_m, s.recipe_json), InputError);
+}
+
+// Same content, written at different times: the same bytes (no object timestamps), so batch
+// outputs can be compared byte for byte.
+TEST(ImageFile, SameContentSameBytes) {
+    TempDir d;
+    const auto s = sampleStack();
+    writeImageFile(d.file("a.h5"), s);
+    std::this_thread::sleep_for(std::chrono::milliseconds(1100));  // a different second for any timestamp
+    writeImageFile(d.file("b.h5"), s);
+    auto bytes = [](const std::string& p) {
+        std::ifstream in(p, std::ios::binary);
+        return std::string(std::istreambuf_iterator<char>(in), {});
+    };
+    const auto a = bytes(d.file("a.h5")), b = bytes(d.file("b.h5"));
+    ASSERT_FALSE(a.empty());
+    EXPECT_TRUE(a == b);
 }
 
 TEST(ImageFile, FrameOutsideTheStackIsRefused) {
