@@ -133,23 +133,10 @@ done
 say "cluster up: node $NODE ($CPUS CPUs), slurmctld port $CTLD_PORT, slurmd port $SLURMD_PORT"
 
 # ---------------------------------------------------------------- captures and manifest
-cat >"$T/scene.json" <<'EOF'
-{ "format": "umbra-scene", "version": 1,
-  "title": "Slurm self-test block (synthetic data)", "scenario": "reference_block", "seed": 1,
-  "array": { "elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "element_height_mm": 10,
-             "elevation_beam_width_mm": 3, "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6 },
-  "transmit": { "kind": "single_element" },
-  "sampling": { "frequency_mhz": 50, "samples": 400 },
-  "medium": { "speed_m_s": 5920, "shear_speed_m_s": 3240, "attenuation_db_per_cm_mhz": 0.02, "thickness_mm": 8 },
-  "reflectors": { "back_wall": { "amplitude": 1.0, "repeats": 1 },
-                  "side_drilled_holes": [ { "centre_mm": [0, 4], "diameter_mm": 1.0, "amplitude": 0.5 } ] },
-  "noise": { "snr_db": 40, "reference": "back_wall" },
-  "frames": { "kind": "single" },
-  "output": { "sample_type": "int16", "units": "a.u." } }
-EOF
+SCENE=$ROOT/tests/app/fixtures/small_block_scene.json  # small synthetic block, quick to simulate
 list=""
 for i in $(seq 1 $CAPTURES); do
-  "$CLI" simulate "$T/scene.json" -o "$T/captures/block$i.h5" --seed "$i" --quiet
+  "$CLI" simulate "$SCENE" -o "$T/captures/block$i.h5" --seed "$i" --quiet
   list+="${list:+, }\"captures/block$i.h5\""
 done
 cat >"$T/manifest.json" <<EOF

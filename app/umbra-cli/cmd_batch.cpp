@@ -264,6 +264,7 @@ int cmdBatch(const Argv& argv) {
     saveSummary();
 
     const bool tty = isatty(2);
+    TerminalBar bar(30);
     std::fprintf(stderr, "batch: shard %zu of %zu: %zu of %zu capture(s)%s\n", shard.index, shard.count, items.size(),
                  m.captures.size(), resume ? ", resuming" : "");
     for (size_t k = 0; k < items.size(); ++k) {
@@ -288,12 +289,9 @@ int cmdBatch(const Argv& argv) {
                 job.threads = threads;
                 if (tty)
                     job.progress = [&](double x, size_t pos, size_t count) {
-                        const double all = (double(k) + x) / double(items.size());
-                        const int n = int(all * 30);
-                        std::fprintf(stderr, "\r\033[K[%s%s] %3d%%  capture %zu/%zu %s  frame %zu/%zu", std::string(size_t(n), '#').c_str(),
-                                     std::string(size_t(30 - n), ' ').c_str(), int(all * 100), k + 1, items.size(), name.c_str(),
-                                     pos + 1, count);
-                        std::fflush(stderr);
+                        bar.draw((double(k) + x) / double(items.size()), "capture " + std::to_string(k + 1) + "/" +
+                                                                             std::to_string(items.size()) + " " + name + "  frame " +
+                                                                             std::to_string(pos + 1) + "/" + std::to_string(count));
                     };
                 const JobResult r = reconstructToFile(job, m.recipe);
                 it.sha256 = r.capture_sha256;
@@ -315,7 +313,7 @@ int cmdBatch(const Argv& argv) {
             }
         }
         it.total_s = since(t_start);
-        if (tty) std::fputs("\r\033[K", stderr);
+        bar.done();
         std::fprintf(stderr, "batch: [%zu/%zu] %s: %s (%.2f s)%s%s\n", k + 1, items.size(), m.entries[it.index].c_str(),
                      it.status.c_str(), it.total_s, it.error.empty() ? "" : ": ", it.error.c_str());
         saveSummary();

@@ -72,16 +72,13 @@ int cmdReconstruct(const Argv& argv) {
         job.image = *out;
         job.png = a.value("--png");
         job.frames = a.value("--frames").value_or("all");
-        const bool tty = isatty(2);
-        if (tty)
-            job.progress = [](double all, size_t pos, size_t count) {
-                const int n = int(all * 40);
-                std::fprintf(stderr, "\r[%s%s] %3d%%  frame %zu/%zu", std::string(size_t(n), '#').c_str(),
-                             std::string(size_t(40 - n), ' ').c_str(), int(all * 100), pos + 1, count);
-                std::fflush(stderr);
+        TerminalBar bar;
+        if (isatty(2))
+            job.progress = [&bar](double all, size_t pos, size_t count) {
+                bar.draw(all, "frame " + std::to_string(pos + 1) + "/" + std::to_string(count));
             };
         const JobResult r = reconstructToFile(job, recipe);
-        if (tty) std::fputs("\n", stderr);
+        bar.done();
 
         if (a.has("--timings")) {
             std::printf("grid            %zu x %zu pixels (x x z), step %.4f mm, amplitude fidelity %.2f dB (worst case, Gaussian PSF model)\n",

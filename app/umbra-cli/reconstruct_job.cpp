@@ -1,6 +1,7 @@
 // SPDX-License-Identifier: MIT
 #include "reconstruct_job.h"
 
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <sstream>
@@ -67,6 +68,23 @@ std::string pngPathFor(const std::string& base, size_t frame, bool several) {
     const auto slash = base.find_last_of('/');
     if (dot == std::string::npos || (slash != std::string::npos && dot < slash)) return base + suffix + ".png";
     return base.substr(0, dot) + suffix + base.substr(dot);
+}
+
+void TerminalBar::draw(double fraction, const std::string& text) {
+    const double now = std::chrono::duration<double>(Clock::now().time_since_epoch()).count();
+    if (drawn_ && now - last_s_ < 0.1 && fraction < 1) return;
+    last_s_ = now;
+    drawn_ = true;
+    const double x = std::clamp(fraction, 0.0, 1.0);
+    const int n = int(x * width_);
+    std::fprintf(stderr, "\r\033[K[%s%s] %3d%%  %s", std::string(size_t(n), '#').c_str(), std::string(size_t(width_ - n), ' ').c_str(),
+                 int(x * 100), text.c_str());
+    std::fflush(stderr);
+}
+
+void TerminalBar::done() {
+    if (drawn_) std::fputs("\r\033[K", stderr);
+    drawn_ = false;
 }
 
 JobResult reconstructToFile(const JobOptions& o, const core::Recipe& recipe) {

@@ -55,6 +55,23 @@ struct JobResult {
     double output_seconds = 0;   ///< TCG, image file and PNG writing
 };
 
+/// A progress bar on stderr for a terminal: "[####    ]  40%  TEXT", redrawn at most every
+/// 0.1 s (and at 100 %), cleared by done().
+class TerminalBar {
+public:
+    explicit TerminalBar(int width = 40) : width_(width) {}
+    ~TerminalBar() { done(); }
+    TerminalBar(const TerminalBar&) = delete;
+    TerminalBar& operator=(const TerminalBar&) = delete;
+    void draw(double fraction, const std::string& text);
+    void done();  ///< clears the line
+
+private:
+    int width_;
+    double last_s_ = -1;
+    bool drawn_ = false;
+};
+
 /// Checks the capture (header, in a child process), reconstructs the chosen frames with
 /// `recipe` and writes the linear envelope after TCG to options.image one frame at a time
 /// (PATH.partial, renamed when complete; PNGs are written before the rename). Throws

@@ -21,20 +21,8 @@ FIXTURES = os.path.join(HERE, "..", "core", "fixtures")
 sys.dont_write_bytecode = True  # keep the source tree clean
 sys.path.insert(0, FIXTURES)
 import write_capture as wc  # noqa: E402
-
-CLI, WORK, CASE = sys.argv[1], sys.argv[2], sys.argv[3]
-FAILURES = []
-
-
-def check(cond, what):
-    if not cond:
-        FAILURES.append(what)
-        print("FAIL:", what)
-
-
-def run(*args):
-    p = subprocess.run([CLI, *args], capture_output=True, text=True, timeout=120)
-    return p.returncode, p.stdout, p.stderr
+sys.path.insert(0, HERE)
+from cli_case import CASE, CLI, WORK, check, main, run  # noqa: E402,F401
 
 
 def fresh_dir():
@@ -213,8 +201,4 @@ def case_usage_errors():
 
 
 if __name__ == "__main__":
-    globals()["case_" + CASE]()
-    if FAILURES:
-        print(f"{len(FAILURES)} check(s) failed")
-        sys.exit(1)
-    print("all checks passed")
+    main(globals())
