@@ -15,6 +15,7 @@
 
 #include "core/capture_file.h"
 #include "core/error.h"
+#include "core/json_guard.h"
 
 namespace umbra::core {
 namespace {
@@ -326,6 +327,7 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
 
 CaseDocument caseFromJson(const std::string& text, const std::string& source, const std::string& base_dir) {
     Reader r(source);
+    checkJsonText(text, source);  // plain-words syntax errors, bounded depth and size, out-of-range numbers named
     json j;
     try {
         j = json::parse(text);
