@@ -39,8 +39,8 @@ int main(int argc, char** argv) {
                                "and a finding from it.",
                                "X,Z,A,B");
     QCommandLineOption demoRef("demo-reference",
-                               "With --screenshot: first set the amplitude reference from the side-drilled hole at 10 mm "
-                               "of the case's reference_block.h5 capture.");
+                               "With --screenshot: first make the distance-amplitude curve from the side-drilled holes at "
+                               "5, 10, 15 and 20 mm of the case's reference_block.h5 capture (printed to stderr).");
     QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
     QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
@@ -170,7 +170,7 @@ int main(int argc, char** argv) {
             }
             if (*phase == 1) {
                 if (!idle() && *elapsed < limit_s) return;
-                w.demoReference(10.0);
+                w.demoCurve();
                 ctl->setActiveCapture(cap < ctl->captureCount() ? cap : 0);
                 if (has_frame) ctl->setCurrentFrame(frame_index);
                 applySets();
