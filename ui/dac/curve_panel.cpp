@@ -139,7 +139,7 @@ void CurvePanel::refresh() {
         if (!qs.empty()) di->setToolTip(q(core::quantityTooltip(qs.front(), u)));
         table_->setItem(r, DepthColumn, di);
         table_->setItem(r, XColumn, new QTableWidgetItem(q(core::formatQuantity(xq))));
-        table_->setItem(r, LevelColumn, new QTableWidgetItem(QStringLiteral("%1 dB").arg(20 * std::log10(p.amplitude / a0), 0, 'f', 1)));
+        table_->setItem(r, LevelColumn, new QTableWidgetItem(QStringLiteral("%1%2 dB").arg(p.amplitude >= a0 ? "+" : "").arg(20 * std::log10(p.amplitude / a0), 0, 'f', 1)));
         table_->item(r, LevelColumn)->setToolTip(tr("linear amplitude %1 (capture units)").arg(p.amplitude, 0, 'g', 5));
         table_->setItem(r, LabelColumn, new QTableWidgetItem(q(p.label)));
         QString cap = p.capture_sha256.empty() ? tr("unknown") : q(p.capture_sha256.substr(0, 12));
