@@ -3,7 +3,7 @@
 # Renders screenshots of the workstation on the demo captures under Xvfb. Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
-# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export}.png.
+# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,dac}.png.
 # umbra writes each PNG under a temporary name and renames it; this script then checks that every
 # PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail

@@ -48,15 +48,15 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
     }
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
     if (const auto& c = ctl.curve()) {
-        QString ref = QStringLiteral("Finding amplitudes in %1 at their depth").arg(ctl.amplitudeUnit());
+        style.caption << QStringLiteral("Peaks in dB re DAC at their depth; DAC: %1")
+                             .arg(QString::fromStdString(c->label));
         if (const auto r = core::depthRange(*c))
-            ref += QStringLiteral("; curve from %1 point(s), %2–%3 mm, amplitudes read %4")
-                       .arg(c->points.size())
-                       .arg(r->first * 1e3, 0, 'f', 1)
-                       .arg(r->second * 1e3, 0, 'f', 1)
-                       .arg(QString::fromUtf8(core::basisName(c->basis)));
-        if (!ctl.curveWarning().isEmpty()) ref += QStringLiteral(" — ") + ctl.curveWarning();
-        style.caption << ref;
+            style.caption << QStringLiteral("DAC from %1 point(s), %2–%3 mm, amplitudes read %4; outside that range the end level is held")
+                                 .arg(c->points.size())
+                                 .arg(r->first * 1e3, 0, 'f', 1)
+                                 .arg(r->second * 1e3, 0, 'f', 1)
+                                 .arg(QString::fromUtf8(core::basisName(c->basis)));
+        if (!ctl.curveWarning().isEmpty()) style.caption << ctl.curveWarning();
     }
     if (ctl.hasCapture() && ctl.header().isSynthetic()) style.caption << QStringLiteral("Synthetic demonstration data");
 
