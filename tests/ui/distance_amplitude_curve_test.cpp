@@ -32,12 +32,10 @@ using umbra::ui::MainWindow;
 using umbra::ui::test::waitUntil;
 
 namespace {
-MainWindow::Options quiet() {
-    MainWindow::Options o;
-    o.interactive = false;
-    o.recovery = MainWindow::Recovery::Ignore;
-    o.autosave_seconds = 3600;
-    return o;
+/// Opens `path` in the window and waits for its first image.
+void openAndWait(MainWindow& w, const QString& path) {
+    ASSERT_TRUE(w.openPath(path));
+    ASSERT_TRUE(waitUntil([&] { return w.controller()->hasImage() && !w.controller()->isBusy(); }));
 }
 core::Measurement box(double x0, double z0, double x1, double z1) {
     core::Measurement m;
@@ -78,13 +76,11 @@ void pickThree(ui::CaseController* ctl) {
 }  // namespace
 
 TEST(distance_amplitude_curve_test, picking_points_db_re_curve_and_warnings) {
-    const QString cap = threeHoles();
-    MainWindow w(quiet());
+    MainWindow w(ui::test::quietOptions());
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(cap));
-    ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
+    ASSERT_NO_FATAL_FAILURE(openAndWait(w, threeHoles()));
     EXPECT_EQ(ctl->amplitudeUnit(), "dB re frame peak");
-    pickThree(ctl);
+    ASSERT_NO_FATAL_FAILURE(pickThree(ctl));
     ASSERT_TRUE(ctl->curve().has_value());
     const auto& c = *ctl->curve();
     ASSERT_EQ(c.points.size(), 3u);
@@ -179,11 +175,9 @@ TEST(distance_amplitude_curve_test, picking_points_db_re_curve_and_warnings) {
 }
 
 TEST(distance_amplitude_curve_test, tcg_from_curve_makes_equal_echoes_display_equal) {
-    const QString cap = threeHoles();
-    MainWindow w(quiet());
+    MainWindow w(ui::test::quietOptions());
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(cap));
-    ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
+    ASSERT_NO_FATAL_FAILURE(openAndWait(w, threeHoles()));
     // One point is not enough for a TCG.
     {
         const auto* f = ctl->envelope();
@@ -194,7 +188,7 @@ TEST(distance_amplitude_curve_test, tcg_from_curve_makes_equal_echoes_display_eq
         EXPECT_TRUE(why.contains("two or more depths")) << why.toStdString();
         ctl->editCurve(std::nullopt, "clear");
     }
-    pickThree(ctl);
+    ASSERT_NO_FATAL_FAILURE(pickThree(ctl));
     const long runs = ctl->beamformRuns();
     QString why;
     ASSERT_TRUE(ctl->makeTcgFromCurve(&why)) << why.toStdString();
@@ -226,11 +220,10 @@ TEST(distance_amplitude_curve_test, remove_points_save_reopen_and_old_cases) {
     core::DistanceAmplitudeCurve kept;
     std::optional<core::DacReading> reading;
     {
-        MainWindow w(quiet());
+        MainWindow w(ui::test::quietOptions());
         auto* ctl = w.controller();
-        ASSERT_TRUE(w.openPath(cap));
-        ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
-        pickThree(ctl);
+        ASSERT_NO_FATAL_FAILURE(openAndWait(w, cap));
+        ASSERT_NO_FATAL_FAILURE(pickThree(ctl));
         // Remove the middle point from the panel; undo brings it back.
         auto* panel = w.curvePanel();
         panel->table()->selectRow(1);
@@ -248,7 +241,7 @@ TEST(distance_amplitude_curve_test, remove_points_save_reopen_and_old_cases) {
         ASSERT_TRUE(w.saveCaseTo(case_path));
     }
     {
-        MainWindow w2(quiet());
+        MainWindow w2(ui::test::quietOptions());
         ASSERT_TRUE(w2.openPath(case_path));
         auto* ctl = w2.controller();
         ASSERT_TRUE(ctl->curve().has_value());
@@ -273,7 +266,7 @@ TEST(distance_amplitude_curve_test, remove_points_save_reopen_and_old_cases) {
                      .arg(cap, QString::fromStdString(core::fileSha256(cap.toStdString())))
                      .toUtf8());
     }
-    MainWindow w3(quiet());
+    MainWindow w3(ui::test::quietOptions());
     ASSERT_TRUE(w3.openPath(old_path));
     auto* ctl = w3.controller();
     ASSERT_TRUE(ctl->curve().has_value());

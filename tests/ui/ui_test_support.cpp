@@ -80,6 +80,14 @@ void writeReflectorsCapture(const std::string& path, const std::vector<TestRefle
     writeCapture(path, reflectors, elements, 1);
 }
 
+MainWindowOptions quietOptions() {
+    MainWindowOptions o;
+    o.interactive = false;
+    o.recovery = Recovery::Ignore;
+    o.autosave_seconds = 3600;
+    return o;
+}
+
 bool waitUntil(const std::function<bool()>& done, int timeout_ms) {
     QElapsedTimer t;
     t.start();

@@ -8,6 +8,8 @@
 #include <string>
 #include <vector>
 
+#include "ui/main/main_window.h"
+
 namespace umbra::ui::test {
 
 /// Writes a full-matrix capture: `elements` elements at 0.6 mm pitch, 5 MHz, 1540 m/s, one point
@@ -22,6 +24,9 @@ struct TestReflector {
 /// As writePointCapture with the given reflectors instead of the one at 10 mm, one frame, and
 /// enough samples to reach 3 mm below the deepest.
 void writeReflectorsCapture(const std::string& path, const std::vector<TestReflector>& reflectors, size_t elements = 8);
+
+/// Window options for tests: no modal dialogs, autosave recovery ignored, autosave rarely.
+MainWindowOptions quietOptions();
 
 /// Processes events until `done()` or `timeout_ms` passes. Returns done().
 bool waitUntil(const std::function<bool()>& done, int timeout_ms = 20000);
