@@ -468,6 +468,7 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
             doc.findings.push_back(readFinding(r, (*fj)[i], Reader::index("findings", i)));
     if (j.contains("distance_amplitude_curve") && !j["distance_amplitude_curve"].is_null()) {
         doc.curve = readCurve(r, j["distance_amplitude_curve"], "distance_amplitude_curve");
+        if (doc.curve->points.empty()) doc.curve.reset();  // no points: no reference, as if absent
     } else if (j.contains("amplitude_reference") && !j["amplitude_reference"].is_null()) {
         doc.curve = readLegacyReference(r, j["amplitude_reference"], "amplitude_reference");
     }

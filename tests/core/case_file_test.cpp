@@ -382,6 +382,10 @@ TEST(case_file_test, hand_written_curve_per_the_documentation_loads) {
     // 20 log10(4 / curve at 10 mm): the curve is 20 log10 4 there (geometric mean of 8 and 2).
     EXPECT_NEAR(dbReCurve(*d.curve, 4.0, 10e-3)->db, 0.0, 1e-9);
 
+    // No points: no curve (amplitudes re the frame peak).
+    EXPECT_FALSE(caseFromJson(R"({"format": "umbracase", "version": 1, "distance_amplitude_curve": {"points": []}})", "x")
+                     .curve.has_value());
+
     // Errors name the key.
     auto where = [](const std::string& t) {
         try {

@@ -662,9 +662,8 @@ void MainWindow::updateReferenceWarning() {
     if (!w.isEmpty()) {
         ref_warning_->setStyleSheet("color: #b3261e; font-weight: bold;");
         ref_warning_->setText(w);
-    } else if (c) {
+    } else if (const auto r = c ? core::depthRange(*c) : std::nullopt) {
         ref_warning_->setStyleSheet("color: #3b4250;");
-        const auto r = core::depthRange(*c);
         ref_warning_->setText(tr("0 dB = DAC, %1 (%2–%3 mm)")
                                   .arg(QString::fromStdString(c->label))
                                   .arg(r->first * 1e3, 0, 'f', 1)

@@ -285,17 +285,20 @@ void TraceView::refresh() {
     const QString title =
         tr("Amplitude at x = %1 mm, frame %2").arg(f->x_m[static_cast<size_t>(ix)] * 1e3, 0, 'f', 2).arg(ctl_->currentFrame() + 1);
     const auto& curve = ctl_->curve();
-    re_curve_->setVisible(curve.has_value());
+    double from_m = 0, to_m = 0;  // depths the curve's points cover
+    bool covered = false;
+    if (curve)
+        if (const auto r = core::depthRange(*curve)) covered = true, from_m = r->first, to_m = r->second;
+    re_curve_->setVisible(covered);
     plot_->setToolTip(ctl_->curveWarning());
-    if (curve) {
+    if (curve && covered) {
         // dB of the envelope (on the curve's basis) re the curve at each depth, or re the curve's
         // shallowest point with the curve drawn as its line; the reporting level is re the curve.
         const bool re = re_curve_->isChecked();
-        const auto range = core::depthRange(*curve);
-        const double l0 = core::dacLevel(*curve, range->first)->level_db;
+        const double l0 = core::dacLevel(*curve, from_m)->level_db;
         TracePlot::CurveOverlay ov;
-        ov.covered_from_mm = range->first * 1e3;
-        ov.covered_to_mm = range->second * 1e3;
+        ov.covered_from_mm = from_m * 1e3;
+        ov.covered_to_mm = to_m * 1e3;
         ov.level_follows_curve = !re;
         float top = -1e30f;
         for (size_t iz = 0; iz < f->nz(); ++iz) {
@@ -309,7 +312,7 @@ void TraceView::refresh() {
         }
         const double t = std::max(0.0, std::ceil(std::max<double>(top, level_->value()) / 6.0) * 6.0);
         const QString unit = re ? ctl_->amplitudeUnit()
-                                : tr("dB re DAC at %1 mm (%2)").arg(range->first * 1e3, 0, 'f', 1).arg(QString::fromStdString(curve->label));
+                                : tr("dB re DAC at %1 mm (%2)").arg(from_m * 1e3, 0, 'f', 1).arg(QString::fromStdString(curve->label));
         plot_->setTrace(std::move(z), std::move(col), t - ctl_->dynamicRangeDb(), level_->value(), depth_mm_, title, t, unit);
         plot_->setCurve(std::move(ov));
         return;
