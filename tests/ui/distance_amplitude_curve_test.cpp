@@ -12,6 +12,7 @@
 
 #include <QFile>
 #include <QLabel>
+#include <QStatusBar>
 #include <QPushButton>
 #include <QTableWidget>
 #include <QUndoStack>
@@ -25,6 +26,7 @@
 #include "ui/dac/curve_panel.h"
 #include "ui/main/main_window.h"
 #include "ui/trace/trace_view.h"
+#include "ui/viewer/image_view.h"
 #include "ui_test_support.h"
 
 using namespace umbra;
@@ -32,6 +34,12 @@ using umbra::ui::MainWindow;
 using umbra::ui::test::waitUntil;
 
 namespace {
+/// Whether a label in the window's status bar contains `text` and is shown.
+bool statusShows(MainWindow& w, const QString& text) {
+    for (auto* l : w.statusBar()->findChildren<QLabel*>())
+        if (l->isVisibleTo(&w) && l->text().contains(text)) return true;
+    return false;
+}
 /// Opens `path` in the window and waits for its first image.
 void openAndWait(MainWindow& w, const QString& path) {
     ASSERT_TRUE(w.openPath(path));
@@ -142,6 +150,12 @@ TEST(distance_amplitude_curve_test, picking_points_db_re_curve_and_warnings) {
     ASSERT_TRUE(out);
     EXPECT_TRUE(out->outside);
     EXPECT_TRUE(ctl->outsideText().contains("outside the curve's depth range"));
+    // The cursor readout says it: inside the range plain dB re DAC, below it flagged.
+    emit w.imageView()->cursorMoved(QPointF(f.x_m[px] * 1e3, f.z_m[pz] * 1e3), true);
+    EXPECT_TRUE(statusShows(w, "dB re DAC (point reflectors (test))"));
+    EXPECT_FALSE(statusShows(w, "outside the curve"));
+    emit w.imageView()->cursorMoved(QPointF(0, deep_mm), true);
+    EXPECT_TRUE(statusShows(w, "outside the curve's depth range"));
     const std::string deep = ctl->addMeasurement(box(-3, deep_mm - 0.3, 3, deep_mm + 0.3));
     ctl->addFindingFromMeasurement(deep);
     EXPECT_NE(ctl->findings().back().indication.reference.find("outside the curve's depth range"), std::string::npos);
@@ -165,6 +179,7 @@ TEST(distance_amplitude_curve_test, picking_points_db_re_curve_and_warnings) {
     EXPECT_TRUE(ctl->curveWarning().contains(QString::fromStdString(fkey))) << ctl->curveWarning().toStdString();
     EXPECT_TRUE(w.curvePanel()->warningLabel()->isVisibleTo(w.curvePanel()));
     EXPECT_TRUE(w.curvePanel()->warningLabel()->text().contains(QString::fromStdString(fkey)));
+    EXPECT_TRUE(statusShows(w, "Amplitudes not comparable with the distance–amplitude curve"));
     ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
     ctl->addFindingFromMeasurement(mid);
     EXPECT_NE(ctl->findings().back().indication.reference.find("not comparable"), std::string::npos);
