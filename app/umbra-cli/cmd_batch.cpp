@@ -20,6 +20,7 @@
 #include "core/capture_file.h"
 #include "core/error.h"
 #include "core/frame.h"
+#include "core/json_guard.h"
 #include "reconstruct_job.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
@@ -58,6 +59,7 @@ Manifest readManifest(const std::string& path) {
     std::stringstream ss;
     ss << in.rdbuf();
     if (!in) throw core::InputError(path, "", "cannot be read");
+    core::checkJsonText(ss.str(), path);  // syntax (line, column), depth and size, before parsing
     json j;
     try {
         j = json::parse(ss.str());
