@@ -5,11 +5,13 @@
 
 #include <algorithm>
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <map>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -180,7 +182,9 @@ json summaryJson(const Manifest& m, const Shard& s, const std::string& out_dir, 
         c["sha256"] = it.sha256;
         c["status"] = it.status;
         c["frames"] = it.frames;
-        c["seconds"] = {{"hash", it.hash_s}, {"reconstruct", it.reconstruct_s}, {"output", it.output_s}, {"total", it.total_s}};
+        // Wall times in seconds, to the millisecond.
+        auto ms = [](double s) { return std::round(s * 1000) / 1000; };
+        c["seconds"] = {{"hash", ms(it.hash_s)}, {"reconstruct", ms(it.reconstruct_s)}, {"output", ms(it.output_s)}, {"total", ms(it.total_s)}};
         if (!it.error.empty()) c["error"] = it.error;
         done += it.status == "done";
         fresh += it.status == "up to date";
@@ -193,25 +197,27 @@ json summaryJson(const Manifest& m, const Shard& s, const std::string& out_dir, 
 }
 
 // An existing output is up to date when its recorded capture hash and recipe match and the
-// PNG(s) asked for are there. Computes the capture's hash into `sha` when it gets that far.
-bool upToDate(const std::string& image, const std::string& capture, const core::Recipe& recipe, const std::string& png,
-              std::string& sha) {
+// PNG(s) asked for are there; then the image's frame count. Computes the capture's hash into
+// `sha` when it gets that far.
+std::optional<size_t> upToDate(const std::string& image, const std::string& capture, const core::Recipe& recipe,
+                               const std::string& png, std::string& sha) {
     std::error_code ec;
-    if (!fs::exists(image, ec)) return false;
+    if (!fs::exists(image, ec)) return std::nullopt;
     core::ImageStack old;
     try {
         old = core::readImageFileHeader(image);
     } catch (const core::InputError&) {
-        return false;  // damaged or foreign: made again
+        return std::nullopt;  // damaged or foreign: made again
     }
-    if (old.recipe_json != recipe.toJson()) return false;
+    if (old.recipe_json != recipe.toJson()) return std::nullopt;
     if (!png.empty()) {
         const bool several = old.frames > 1;
         for (size_t f = 0; f < old.frames; ++f)
-            if (!fs::exists(pngPathFor(png, f, several), ec)) return false;
+            if (!fs::exists(pngPathFor(png, f, several), ec)) return std::nullopt;
     }
     sha = core::fileSha256(capture);
-    return old.capture_sha256 == sha;
+    if (old.capture_sha256 != sha) return std::nullopt;
+    return old.frames;
 }
 
 }  // namespace
@@ -277,9 +283,9 @@ int cmdBatch(const Argv& argv) {
         try {
             if (resume) {
                 const auto t0 = Clock::now();
-                if (upToDate(it.image, cap, m.recipe, it.png, it.sha256)) {
+                if (auto frames = upToDate(it.image, cap, m.recipe, it.png, it.sha256)) {
                     it.hash_s = since(t0);
-                    it.frames = core::readImageFileHeader(it.image).frames;
+                    it.frames = *frames;
                     it.status = "up to date";
                 }
             }
