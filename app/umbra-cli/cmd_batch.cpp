@@ -307,7 +307,7 @@ int cmdBatch(const Argv& argv) {
                 it.reconstruct_s = r.reconstruct_seconds;
                 it.output_s = r.output_seconds;
                 for (auto& [stage, s] : r.stage_seconds)
-                    if (stage == "capture hash") it.hash_s += s;
+                    if (stage.rfind("capture hash", 0) == 0) it.hash_s += s;  // time spent on (or waiting for) the hash
                 it.status = "done";
             }
         } catch (const std::exception& e) {
