@@ -85,6 +85,8 @@ constexpr size_t kMaxTransformBytes = size_t(1) << 30;
 constexpr int kTaps = 6;          // Lanczos-3 interpolation along frequency
 constexpr int kFractions = 512;   // table resolution of the fractional bin position
 constexpr size_t kChunk = 8;      // frequency bins per strided lateral FFT (one cache line)
+constexpr int kAngleTable = 4096;
+constexpr int kPhaseTable = 4096;
 
 using Clock = std::chrono::steady_clock;
 double since(Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); }
@@ -220,6 +222,10 @@ struct WavenumberImager::Impl {
     std::vector<float> tx_weight;      // per transmit (plane waves)
     std::vector<float> space_w;        // per element column (full aperture window), else 1
     std::vector<float> lanczos;
+    std::vector<float> angle_table;    // aperture weight at u = tan(angle) / tan_lim, kAngleTable + 1 steps over [0, 1]
+    std::vector<cfloat> phase_table;   // exp(-i 2 pi n / kPhaseTable), n = 0 .. kPhaseTable
+    std::vector<float> norm;           // [nz_out][nx_out] aperture weight sum per pixel (0: pixel not imaged)
+    bool symmetric = false;            // full matrix, one element set, reciprocity on: kt <= kr pairs once, doubled
     std::vector<double> cum_window;    // cumulative integral of the aperture window over u in [-1, 1]
     std::vector<double> col_prefix_tx, col_prefix_rx;  // prefix sums of space_w over columns used
     std::vector<size_t> tx_col, rx_col;
@@ -230,7 +236,8 @@ struct WavenumberImager::Impl {
     size_t data_size = 0;
     CBuf kspace;                       // [2 kx_max + 1][nKz]
     std::vector<float> raw;            // one transmit block [nrx][ns]
-    Plan lateral_plan;                 // strided lateral FFT of kChunk bins
+    Plan lateral_plan;                 // strided FFT along the receive index, kChunk bins
+    Plan transmit_plan;                // full matrix: strided FFT along the transmit index, kChunk bins
     struct Worker {
         float* rin = nullptr;
         cfloat* spec = nullptr;
@@ -397,6 +404,38 @@ struct WavenumberImager::Impl {
         zrows.assign(nz_out * size_t(2 * kx_max + 1), cfloat(0));
         raw.resize(nrx * ns);
         lanczos = lanczosTable();
+        angle_table.resize(kAngleTable + 1);
+        for (int i = 0; i <= kAngleTable; ++i) angle_table[size_t(i)] = angle_window ? float(window(double(i) / kAngleTable)) : 1.0f;
+        phase_table.resize(kPhaseTable + 1);
+        for (int i = 0; i <= kPhaseTable; ++i)
+            phase_table[size_t(i)] = cfloat(float(std::cos(2 * kPi * i / kPhaseTable)), float(-std::sin(2 * kPi * i / kPhaseTable)));
+        if (fmc && das.reciprocity) {
+            std::vector<size_t> a = tx_col, b = rx_col;
+            std::sort(a.begin(), a.end());
+            std::sort(b.begin(), b.end());
+            symmetric = a == b;
+        }
+        // Per-pixel normalisation (does not depend on the data): dx / sqrt(2 pi z) per one-way
+        // propagation times the aperture weight sums; pixels beyond half the lateral padding
+        // either side of the array, or at z <= 0, are not imaged.
+        {
+            const std::vector<double> gx = grid.xAxis(), gz = grid.zAxis();
+            const double pad_half = (double(mx) * ag.dx - double(ag.n - 1) * ag.dx) / 2;
+            const double ntx_w = fmc ? 1.0 : std::accumulate(tx_weight.begin(), tx_weight.end(), 0.0);
+            norm.assign(gx.size() * gz.size(), 0.0f);
+            for (size_t l = 0; l < gz.size(); ++l) {
+                const double z = gz[l];
+                if (!(z > 0)) continue;
+                const double one_way = ag.dx / std::sqrt(2 * kPi * z);
+                for (size_t i = 0; i < gx.size(); ++i) {
+                    const double x = gx[i];
+                    if (x < ag.x0 - pad_half || x > ag.x0 + double(ag.n - 1) * ag.dx + pad_half) continue;
+                    const double ar = apertureSum(col_prefix_rx, rx_col.size(), x, z);
+                    const double v = fmc ? one_way * one_way * apertureSum(col_prefix_tx, tx_col.size(), x, z) * ar : one_way * ntx_w * ar;
+                    norm[l * gx.size() + i] = v > 1e-30 ? float(1 / v) : 0.0f;
+                }
+            }
+        }
 
         threads = std::clamp(nthreads > 0 ? nthreads : int(std::max(1u, std::thread::hardware_concurrency())), 1, 256);
         workers.resize(size_t(threads));
@@ -417,26 +456,34 @@ struct WavenumberImager::Impl {
                                            FFTW_BACKWARD, FFTW_ESTIMATE));
             auto* d = reinterpret_cast<fftwf_complex*>(data.get());
             const int stride = int(nbp);
-            if (fmc) {
-                const int n2[2] = {int(mx), int(mx)};
-                lateral_plan = Plan(fftwf_plan_many_dft(2, n2, int(kChunk), d, nullptr, stride, 1, d, nullptr, stride, 1, FFTW_FORWARD,
-                                                        FFTW_ESTIMATE | FFTW_UNALIGNED));
-            } else {
-                const int n1[1] = {int(mx)};
-                lateral_plan = Plan(fftwf_plan_many_dft(1, n1, int(kChunk), d, nullptr, stride, 1, d, nullptr, stride, 1, FFTW_FORWARD,
-                                                        FFTW_ESTIMATE | FFTW_UNALIGNED));
-            }
+            // Along the receive (plane wave: element) index for every transmit row; full matrix:
+            // then along the transmit index for the receive wavenumbers the aperture reaches.
+            const int n1[1] = {int(mx)};
+            lateral_plan = Plan(fftwf_plan_many_dft(1, n1, int(kChunk), d, nullptr, stride, 1, d, nullptr, stride, 1, FFTW_FORWARD,
+                                                    FFTW_ESTIMATE | FFTW_UNALIGNED));
+            if (fmc)
+                transmit_plan = Plan(fftwf_plan_many_dft(1, n1, int(kChunk), d, nullptr, int(mx * nbp), 1, d, nullptr, int(mx * nbp), 1,
+                                                         FFTW_FORWARD, FFTW_ESTIMATE | FFTW_UNALIGNED));
         }
-        if (!r2c.p || !zplan.p || !xplan.p || !lateral_plan.p) throw core::SettingError("wavenumber imaging: FFT planning failed");
+        if (!r2c.p || !zplan.p || !xplan.p || !lateral_plan.p || (fmc && !transmit_plan.p)) throw core::SettingError("wavenumber imaging: FFT planning failed");
         if (threads > 1) pool = std::make_unique<detail::ThreadPool>(threads);
     }
 
     double window(double u) const { return angle_window ? apodizationWeight(das.apodization, u, das.tukey_alpha) : (std::fabs(u) <= 1 ? 1.0 : 0.0); }
 
-    // Aperture weight of a ray at tan(angle) t from the depth axis.
+    // Aperture weight of a ray at tan(angle) t >= 0 from the depth axis (table, nearest step).
     float angleWeight(double t) const {
-        if (angle_window) return float(window(t / tan_lim));
-        return t <= tan_lim ? 1.0f : 0.0f;
+        const double u = t / tan_lim;
+        return u > 1 ? 0.0f : angle_table[size_t(u * kAngleTable + 0.5)];
+    }
+
+    // exp(-i theta) by table with linear interpolation (error < 3e-7).
+    cfloat expMinus(double theta) const {
+        double x = theta * (1 / (2 * kPi));
+        x = (x - std::floor(x)) * kPhaseTable;
+        const size_t i = std::min(size_t(x), size_t(kPhaseTable - 1));
+        const float f = float(x - double(i));
+        return phase_table[i] + (phase_table[i + 1] - phase_table[i]) * f;
     }
 
     void parallel(size_t count, const std::function<void(int, size_t)>& fn) {
@@ -520,6 +567,8 @@ struct WavenumberImager::Impl {
             std::fill(col, col + nKz, cfloat(0));
             for (long it = std::max(-kt_max, K - kt_max); it <= std::min(kt_max, K + kt_max); ++it) {
                 const long ir = K - it;
+                if (symmetric && it > ir) continue;  // reciprocity: D(kt, kr) = D(kr, kt) gives the same terms
+                const double mult = symmetric && it < ir ? 2.0 : 1.0;
                 const double kt = double(it) * dk, kr = double(ir) * dk;
                 const double a = kt * kt, b = kr * kr;
                 const size_t rt = size_t(((it % long(mx)) + long(mx)) % long(mx)), rr = size_t(((ir % long(mx)) + long(mx)) % long(mx));
@@ -536,9 +585,8 @@ struct WavenumberImager::Impl {
                     const cfloat s = interp(row, om / dw - double(mb0));
                     // W_t W_r = k^2 / (u v)^(3/2); Jacobian dk/dKz = u v / (k Kz).
                     const double uv = u * v;
-                    const double wgt = pref * wa * k * k / (uv * std::sqrt(uv)) * uv / (k * kz);
-                    const double ph = -om * (t_c + t_b);
-                    col[j - j_lo] += s * cfloat(float(wgt * std::cos(ph)), float(wgt * std::sin(ph)));
+                    const double wgt = mult * pref * wa * k / (std::sqrt(uv) * kz);
+                    col[j - j_lo] += s * expMinus(om * (t_c + t_b)) * float(wgt);
                 }
             }
         });
@@ -574,8 +622,7 @@ struct WavenumberImager::Impl {
                     // W = k^-1/2 (k / kz)^3/2; Jacobian dk/dKz = 1 / (cos a + (k + kx sin a) / kz).
                     const double jac = 1 / (ca + (k + kx * sa) / kz);
                     const double wgt = pref * wa * k / (kz * std::sqrt(kz)) * jac;
-                    const double ph = -om * (t_c + t_b - sa * ag.x0 / c);
-                    col[j - j_lo] += s * cfloat(float(wgt * std::cos(ph)), float(wgt * std::sin(ph)));
+                    col[j - j_lo] += s * expMinus(om * (t_c + t_b - sa * ag.x0 / c)) * float(wgt);
                 }
             }
         });
@@ -603,12 +650,29 @@ struct WavenumberImager::Impl {
         seconds.emplace_back("time FFT", t_time);
 
         auto t0 = Clock::now();
-        const size_t nchunks = nbp / kChunk, sets = fmc ? 1 : ntx;
-        parallel(sets * nchunks, [&](int, size_t i) {
-            const size_t set = i / nchunks, ch = i % nchunks;
-            auto* p = reinterpret_cast<fftwf_complex*>(data.get() + set * mx * nbp + ch * kChunk);
+        const size_t nchunks = nbp / kChunk;
+        std::vector<size_t> rows;  // transmit rows holding data (plane wave: transmit sets)
+        if (fmc) {
+            rows = tx_col;
+            std::sort(rows.begin(), rows.end());
+        } else {
+            rows.resize(ntx);
+            std::iota(rows.begin(), rows.end(), 0);
+        }
+        parallel(rows.size() * nchunks, [&](int, size_t i) {
+            auto* p = reinterpret_cast<fftwf_complex*>(data.get() + rows[i / nchunks] * mx * nbp + (i % nchunks) * kChunk);
             fftwf_execute_dft(lateral_plan.p, p, p);
         });
+        if (fmc) {
+            std::vector<size_t> cols;  // receive wavenumber indices the aperture reaches
+            for (long ir = -kt_max; ir <= kt_max; ++ir) cols.push_back(size_t(((ir % long(mx)) + long(mx)) % long(mx)));
+            std::sort(cols.begin(), cols.end());
+            cols.erase(std::unique(cols.begin(), cols.end()), cols.end());
+            parallel(cols.size() * nchunks, [&](int, size_t i) {
+                auto* p = reinterpret_cast<fftwf_complex*>(data.get() + cols[i / nchunks] * nbp + (i % nchunks) * kChunk);
+                fftwf_execute_dft(transmit_plan.p, p, p);
+            });
+        }
         seconds.emplace_back("lateral FFT", since(t0));
         poll(0.6);
 
@@ -628,13 +692,11 @@ struct WavenumberImager::Impl {
         f.envelope.assign(nxo * nzo, 0.0f);
         // Depth: Kz bins j shifted to baseband (j - j_c; the envelope does not change), phase of the
         // grid's first row, inverse FFT; keep every rz-th native row.
-        const double dzn = grid.step_m / double(rz);
         std::vector<cfloat> zphase(nKz);
         for (size_t jj = 0; jj < nKz; ++jj) {
             const double ph = double(j_lo + long(jj)) * dkz * grid.z_min_m;
             zphase[jj] = cfloat(float(std::cos(ph)), float(std::sin(ph)));
         }
-        (void)dzn;
         parallel(nK, [&](int w, size_t ki) {
             Worker& W = workers[size_t(w)];
             std::fill(W.zbuf, W.zbuf + nz_n, cfloat(0));
@@ -649,30 +711,23 @@ struct WavenumberImager::Impl {
         // Lateral: Kx = K dk at native positions x0 + n (Mx dx) / lx; linear interpolation onto the
         // output columns; divide by the aperture weight sum.
         const double period = double(mx) * ag.dx, dxn = period / double(lx);
-        const double pad_half = (period - double(ag.n - 1) * ag.dx) / 2;
-        const double ntx_w = fmc ? 1.0 : std::accumulate(tx_weight.begin(), tx_weight.end(), 0.0);
         parallel(nzo, [&](int w, size_t l) {
             Worker& W = workers[size_t(w)];
-            const double z = f.z_m[l];
-            if (!(z > 0)) return;
+            const float* nr = norm.data() + l * nxo;
             std::fill(W.xbuf, W.xbuf + lx, cfloat(0));
             for (size_t ki = 0; ki < nK; ++ki) {
                 const long K = long(ki) - kx_max;
                 W.xbuf[size_t(((K % long(lx)) + long(lx)) % long(lx))] += zrows[l * nK + ki];
             }
             fftwf_execute_dft(xplan.p, reinterpret_cast<fftwf_complex*>(W.xbuf), reinterpret_cast<fftwf_complex*>(W.xbuf));
-            const double one_way = ag.dx / std::sqrt(2 * kPi * z);
             for (size_t i = 0; i < nxo; ++i) {
-                const double x = f.x_m[i];
-                if (x < ag.x0 - pad_half || x > ag.x0 + double(ag.n - 1) * ag.dx + pad_half) continue;
-                double p = (x - ag.x0) / dxn;
+                if (nr[i] == 0) continue;
+                double p = (f.x_m[i] - ag.x0) / dxn;
                 p -= std::floor(p / double(lx)) * double(lx);
                 const size_t i0 = std::min(size_t(p), lx - 1), i1 = (i0 + 1) % lx;
                 const float fr = float(p - double(i0));
                 const cfloat v = W.xbuf[i0] * (1 - fr) + W.xbuf[i1] * fr;
-                const double ar = apertureSum(col_prefix_rx, rx_col.size(), x, z);
-                const double norm = fmc ? one_way * one_way * apertureSum(col_prefix_tx, tx_col.size(), x, z) * ar : one_way * ntx_w * ar;
-                f.envelope[l * nxo + i] = norm > 1e-30 ? float(std::abs(v) / norm) : 0.0f;
+                f.envelope[l * nxo + i] = std::abs(v) * nr[i];
             }
         });
         seconds.emplace_back("inverse FFT + interpolation", since(t0));
