@@ -45,9 +45,10 @@ core::StageSpec wavenumberSpec() {
             "Wavenumber imaging",
             "f-k migration (full matrix) and Stolt migration (plane waves), used when das.method = wavenumber: linear arrays with "
             "evenly spaced elements, homogeneous medium.",
-            {realParam("lateral_padding", "Lateral padding",
-                       "Zero-padded lateral FFT length over the array's element count (keeps the image from wrapping round sideways).",
-                       "", 1.25, 4, 2.0, false, 0.25),
+            {modalRealParam("lateral_padding", "Lateral padding",
+                            "Zero-padded lateral FFT extent over the array's length (keeps the image from wrapping round sideways); "
+                            "automatic: the array, the region beside it and the aperture's spread at the deepest row.",
+                            "", 0, 4, "automatic", 0.25),
              realParam("temporal_padding", "Temporal padding",
                        "Zero-padded time FFT length over the samples used (smooth spectra for the Stolt interpolation, no wrap in time).",
                        "", 1.5, 4, 2.0, false, 0.25),
@@ -60,8 +61,8 @@ WavenumberParams wavenumberParams(const core::Recipe& r) {
     p.lateral_padding = r.number("wavenumber.lateral_padding");
     p.temporal_padding = r.number("wavenumber.temporal_padding");
     p.max_angle_deg = r.number("wavenumber.max_angle_deg");
-    if (!(p.lateral_padding >= 1.25 && p.lateral_padding <= 4))
-        throw core::SettingError("wavenumber.lateral_padding = " + std::to_string(p.lateral_padding) + ": must be 1.25 to 4");
+    if (!(p.lateral_padding == 0 || (p.lateral_padding >= 1.25 && p.lateral_padding <= 4)))
+        throw core::SettingError("wavenumber.lateral_padding = " + std::to_string(p.lateral_padding) + ": must be 0 (automatic) or 1.25 to 4");
     if (!(p.temporal_padding >= 1.5 && p.temporal_padding <= 4))
         throw core::SettingError("wavenumber.temporal_padding = " + std::to_string(p.temporal_padding) + ": must be 1.5 to 4");
     if (!(p.max_angle_deg >= 10 && p.max_angle_deg <= 80))
@@ -360,9 +361,18 @@ struct WavenumberImager::Impl {
 
         // Lateral: padded FFT, and the wavenumbers the aperture can reach (beyond the element
         // grid's Nyquist limit too: the spectrum repeats, as grating lobes do in delay-and-sum).
-        mx = fastFftSize(size_t(std::ceil(wp.lateral_padding * double(ag.n))));
-        dk = 2 * kPi / (double(mx) * ag.dx);
         const double sin_lim = tan_lim / std::sqrt(1 + tan_lim * tan_lim), cos_lim = 1 / std::sqrt(1 + tan_lim * tan_lim);
+        if (wp.lateral_padding > 0) {
+            mx = fastFftSize(size_t(std::ceil(wp.lateral_padding * double(ag.n))));
+        } else {
+            // Automatic: the period must hold the array and the region beside it plus the lateral
+            // spread of the aperture at the deepest row (z tan(angle)) and a few wavelengths, so no
+            // element's contribution wraps round into the region.
+            const double lo = std::min(xa, grid.x_min_m), hi = std::max(xb, grid.x_max_m);
+            const double need = hi - lo + zmax * tan_lim + 4 * c / std::max(f0, 1.0);
+            mx = fastFftSize(std::max<size_t>(size_t(std::ceil(need / ag.dx)) + 1, size_t(std::ceil(1.25 * double(ag.n)))));
+        }
+        dk = 2 * kPi / (double(mx) * ag.dx);
         kt_max = long(std::ceil(k_hi * sin_lim / dk));
         double smax = 0, cmin = 1;
         for (double a : h.transmit.angle_rad) {
@@ -388,10 +398,11 @@ struct WavenumberImager::Impl {
         j_c = (j_lo + j_hi) / 2;
         if (size_t(j_hi - j_lo + 1) > nz_n) throw core::SettingError("wavenumber imaging: depth band does not fit (internal)");
 
-        // Native lateral grid: period Mx dx, at least 4 samples per cycle of the highest Kx and
-        // finer than the output step; linear interpolation onto the output columns.
+        // Native lateral grid: period Mx dx, at least 2 samples per cycle of the highest Kx (the
+        // point-spread function's content sits well below it) and at least as fine as the output
+        // step; linear interpolation onto the output columns.
         const double period = double(mx) * ag.dx;
-        lx = fastFftSize(std::max({size_t(std::ceil(period / grid.step_m)), size_t(4 * (2 * kx_max + 1)), size_t(2 * mx)}));
+        lx = fastFftSize(std::max({size_t(std::ceil(period / grid.step_m)), size_t(2 * (2 * kx_max + 1)), size_t(mx)}));
 
         data_size = (fmc ? mx * mx : ntx * mx) * nbp;
         const double bytes = double(data_size) * sizeof(cfloat) + double(2 * kx_max + 1) * double(j_hi - j_lo + 1) * sizeof(cfloat) +
@@ -546,13 +557,16 @@ struct WavenumberImager::Impl {
             // Plane wave: advance each trace by the wave's arrival at the element (steering
             // compensation), exp(i w sin(a) (x_r - x0) / c).
             const double steer = fmc ? 0.0 : std::sin(h.transmit.angle_rad[t]) * (ag.x0 + double(rx_col[r]) * ag.dx - x0) / c;
+            if (fmc) {
+                for (size_t i = 0; i < nb; ++i) out[i] = W.spec[mb0 + i] * (bp[i] * gain) * centring[i];
+                return;
+            }
+            // exp(i w_m steer) by recurrence over the bins (double precision).
+            const double step = 2 * kPi * fs / double(mt) * steer;
+            std::complex<double> rot(std::cos(step), std::sin(step)), ph(std::cos(double(mb0) * step), std::sin(double(mb0) * step));
             for (size_t i = 0; i < nb; ++i) {
-                cfloat v = W.spec[mb0 + i] * (bp[i] * gain) * centring[i];
-                if (!fmc) {
-                    const double ph = 2 * kPi * double(mb0 + i) * fs / double(mt) * steer;
-                    v *= cfloat(float(std::cos(ph)), float(std::sin(ph)));
-                }
-                out[i] = v;
+                out[i] = W.spec[mb0 + i] * (bp[i] * gain) * centring[i] * cfloat(ph);
+                ph *= rot;
             }
         });
     }

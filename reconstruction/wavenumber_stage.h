@@ -29,7 +29,7 @@
 namespace umbra::recon {
 
 struct WavenumberParams {
-    double lateral_padding = 2.0;   ///< padded lateral extent / array length, [1.25, 4]; default 2
+    double lateral_padding = 0;     ///< padded lateral FFT extent / array length, 1.25 to 4; default 0 = automatic (array, region beside it, aperture spread at the deepest row)
     double temporal_padding = 2.0;  ///< padded FFT length / samples used, [1.5, 4]; default 2
     double max_angle_deg = 60.0;    ///< largest propagation angle from the z axis when das.aperture = full, degrees, [10, 80]; default 60
 };
