@@ -490,8 +490,9 @@ struct WavenumberImager::Impl {
 
     // exp(-i theta) by table with linear interpolation (error < 3e-7).
     cfloat expMinus(double theta) const {
-        double x = theta * (1 / (2 * kPi));
-        x = (x - std::floor(x)) * kPhaseTable;
+        double x = std::fabs(theta) * (1 / (2 * kPi));
+        x = (x - double(static_cast<long long>(x))) * kPhaseTable;  // fraction of a turn (truncation: x >= 0)
+        if (theta < 0) x = kPhaseTable - x;
         const size_t i = std::min(size_t(x), size_t(kPhaseTable - 1));
         const float f = float(x - double(i));
         return phase_table[i] + (phase_table[i + 1] - phase_table[i]) * f;
@@ -527,10 +528,11 @@ struct WavenumberImager::Impl {
 
     // Interpolated stored spectrum row (nbp bins, centred phase) at fractional bin position q.
     cfloat interp(const cfloat* row, double q) const {
-        const long i0 = long(std::floor(q));
-        if (i0 - 2 < 0 || i0 + 3 >= long(nb)) return cfloat(0);
+        if (!(q >= 2)) return cfloat(0);
+        const long i0 = long(q);  // q > 0: truncation is the floor (no libm call on generic x86-64)
+        if (i0 + 3 >= long(nb)) return cfloat(0);
         const double f = q - double(i0);
-        const float* t = lanczos.data() + size_t(std::lround(f * kFractions)) * kTaps;
+        const float* t = lanczos.data() + size_t(f * kFractions + 0.5) * kTaps;
         cfloat s(0);
         for (int d = 0; d < kTaps; ++d) s += t[d] * row[i0 - 2 + d];
         return s;
