@@ -210,6 +210,7 @@ struct WavenumberImager::Impl {
     size_t mb0 = 0, nb = 0, nbp = 0;   // first stored frequency bin, stored bins, stored bins padded to kChunk
     double k_lo = 0, k_hi = 0;         // wavenumber band used, rad/m
     double tan_lim = 0;                // largest tan(angle) in the aperture
+    double sin_lim = 0;                // its sine
     bool angle_window = true;          // f_number aperture: window over angle; full: window over elements
     int apod_kind = 1;                 // 0 rectangular, 1 hann, 2 tukey
     double dk = 0;                     // lateral wavenumber step, rad/m
@@ -361,7 +362,8 @@ struct WavenumberImager::Impl {
 
         // Lateral: padded FFT, and the wavenumbers the aperture can reach (beyond the element
         // grid's Nyquist limit too: the spectrum repeats, as grating lobes do in delay-and-sum).
-        const double sin_lim = tan_lim / std::sqrt(1 + tan_lim * tan_lim), cos_lim = 1 / std::sqrt(1 + tan_lim * tan_lim);
+        sin_lim = tan_lim / std::sqrt(1 + tan_lim * tan_lim);
+        const double cos_lim = 1 / std::sqrt(1 + tan_lim * tan_lim);
         if (wp.lateral_padding > 0) {
             mx = fastFftSize(size_t(std::ceil(wp.lateral_padding * double(ag.n))));
         } else {
@@ -623,7 +625,25 @@ struct WavenumberImager::Impl {
                 const double sa = std::sin(h.transmit.angle_rad[t]), ca = std::cos(h.transmit.angle_rad[t]);
                 const cfloat* row = data.get() + (t * mx + rk) * nbp;
                 const double pref = pref0 * tx_weight[t];
-                for (long j = std::max(j_lo, 1L); j <= j_hi; ++j) {
+                // Depth wavenumbers this column can reach: k in the band with the receive ray inside
+                // the aperture, k (sin a - sin_lim) <= Kx <= k (sin a + sin_lim); Kz(k) = k cos a + kz
+                // rises with k, so the band's ends bound j.
+                double kmin = k_lo, kmax = k_hi;
+                auto bound = [&](double d, bool upper_side) {  // Kx <= k d (upper_side) or Kx >= k d
+                    if (d == 0) {
+                        if (upper_side ? Kx > 0 : Kx < 0) kmin = kmax + 1;
+                    } else if ((d > 0) == upper_side) {
+                        kmin = std::max(kmin, Kx / d);
+                    } else {
+                        kmax = std::min(kmax, Kx / d);
+                    }
+                };
+                bound(sa + sin_lim, true);
+                bound(sa - sin_lim, false);
+                if (kmin > kmax) continue;
+                auto kzOf = [&](double k) { return k * ca + std::sqrt(std::max(0.0, k * k - (Kx - k * sa) * (Kx - k * sa))); };
+                const long ja = std::max({j_lo, 1L, long(kzOf(kmin) / dkz) - 1}), jb = std::min(j_hi, long(kzOf(kmax) / dkz) + 2);
+                for (long j = ja; j <= jb; ++j) {
                     const double Kz = double(j) * dkz;
                     const double den = 2 * (Kz * ca + Kx * sa);
                     if (den <= 0) continue;
