@@ -204,6 +204,13 @@ TEST(wavenumber_test, bad_geometry_is_a_setting_error) {
     EXPECT_NO_THROW(recon::Reconstructor(cap, r, 1));
     r.setText("das.method", "wavenumber");
     EXPECT_THROW(recon::Reconstructor(cap, r, 1), core::SettingError);
+    // The coherence factor needs the individual delay-and-sum terms: refused, not ignored.
+    const std::string even = testutil::tempPath("fk_even.h5");
+    testutil::writePointCapture(even, s, {});
+    core::CaptureReader cap2(even);
+    EXPECT_NO_THROW(recon::Reconstructor(cap2, r, 1));
+    r.setNumber("das.coherence_factor", 1);
+    EXPECT_THROW(recon::Reconstructor(cap2, r, 1), core::SettingError);
 }
 
 // FFT sizes: 2, 3 and 5 smooth, not smaller than asked.
