@@ -409,8 +409,10 @@ struct WavenumberImager::Impl {
         lx = fastFftSize(std::max({size_t(std::ceil(period / grid.step_m)), size_t(2 * (2 * kx_max + 1)), size_t(mx)}));
 
         data_size = (fmc ? mx * mx : ntx * mx) * nbp;
+        const int nthr = std::clamp(nthreads > 0 ? nthreads : int(std::max(1u, std::thread::hardware_concurrency())), 1, 256);
         const double bytes = double(data_size) * sizeof(cfloat) + double(2 * kx_max + 1) * double(j_hi - j_lo + 1) * sizeof(cfloat) +
-                             double(nz_out) * double(2 * kx_max + 1) * sizeof(cfloat);
+                             double(nz_out) * double(2 * kx_max + 1) * sizeof(cfloat) +
+                             double(nthr) * double(nz_n + lx + mt) * sizeof(cfloat) + double(grid.nx() * nz_out) * sizeof(float);
         if (bytes > double(kMaxTransformBytes))
             throw core::SettingError("wavenumber imaging would need " + std::to_string(bytes / double(1 << 20)) +
                                      " MiB for its transforms (limit 1024 MiB): use a smaller region or padding, or das.method = delay_and_sum");
@@ -452,7 +454,7 @@ struct WavenumberImager::Impl {
             }
         }
 
-        threads = std::clamp(nthreads > 0 ? nthreads : int(std::max(1u, std::thread::hardware_concurrency())), 1, 256);
+        threads = nthr;
         workers.resize(size_t(threads));
         for (auto& W : workers) {
             W.rin = fftwf_alloc_real(mt);
