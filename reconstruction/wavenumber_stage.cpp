@@ -391,11 +391,16 @@ struct WavenumberImager::Impl {
         rz = size_t(std::max(1.0, std::ceil(1.2 * (kz_hi - kz_lo) * grid.step_m / (2 * kPi))));
         const double dzn = grid.step_m / double(rz);
         const double t_end = t_b + double(nw) / fs;
-        const double z_deep = fmc ? c * t_end / 2 : c * (t_end + (std::fabs(grid.x_min_m) + std::fabs(grid.x_max_m)) * smax / c) / (1 + cmin);
-        const double z_shallow = std::min(zmin, fmc ? c * t_b * cos_lim / 2 : c * std::max(t_b - (xb - xa) * smax / c, 0.0) / (1 + 1 / cos_lim));
-        const double span = std::max(z_deep, zmax) - z_shallow + 2 * tail * c;
+        // Depths the window's samples can migrate to, [e0, e1]: a sample at time t lands at
+        // z <= c t / 2 (full matrix) or (c t + |x| sin a) / (1 + cos a) (plane wave), and at
+        // z >= c t cos(angle limit) / 2 (full matrix) or (c t - |x| sin a) / (1 + 1 / cos(limit)),
+        // widened by the pulse. The aliases of [e0, e1] one period away must miss the grid.
+        const double xabs = std::max({std::fabs(grid.x_min_m), std::fabs(grid.x_max_m), std::fabs(xa), std::fabs(xb)});
+        const double e1 = (fmc ? c * t_end / 2 : (c * t_end + xabs * smax) / (1 + cmin)) + 2 * tail * c;
+        const double e0 = (fmc ? c * t_b * cos_lim / 2 : std::max(c * t_b - xabs * smax, 0.0) / (1 + 1 / cos_lim)) - 2 * tail * c;
+        const double zperiod = 1.1 * std::max({e1 - grid.z_min_m, grid.z_max_m - e0, grid.z_max_m - grid.z_min_m + grid.step_m});
         const size_t nz_out = grid.nz();
-        nz_n = fastFftSize(std::max<size_t>((nz_out - 1) * rz + 1, size_t(std::ceil(1.25 * span / dzn))));
+        nz_n = fastFftSize(std::max<size_t>((nz_out - 1) * rz + 1, size_t(std::ceil(zperiod / dzn))));
         dkz = 2 * kPi / (double(nz_n) * dzn);
         j_lo = long(std::floor(kz_lo / dkz));
         j_hi = long(std::ceil(kz_hi / dkz));
