@@ -145,6 +145,41 @@ std::vector<float> lanczosTable() {
     return t;
 }
 
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
+#define UMBRA_FK_WIDE __attribute__((target_clones("avx512f", "avx2", "default")))
+#else
+#define UMBRA_FK_WIDE
+#endif
+
+// One plane-wave Stolt column: lateral wavenumber Kx, angle (ca = cos a, sa = sin a), n depth
+// wavenumbers Kz = kz0 + i dkz.
+struct PlaneWaveColumn {
+    float Kx, ca, sa, kz0, dkz, k_lo, k_hi, inv_tan, c_over_dw, mb0, cT, pref;
+};
+
+// For each Kz: k = (Kx^2 + Kz^2) / (2 (Kz ca + Kx sa)); fractional spectrum bin q, weight w
+// (pref x aperture x W x Jacobian; 0 where the mapping leaves the band, is evanescent or outside
+// the aperture) and phase k c T (rad). Branch-free so it vectorises (clones per CPU).
+UMBRA_FK_WIDE void planeWaveMapping(const PlaneWaveColumn& r, const float* __restrict table, int table_n, size_t n, float* __restrict q,
+                                    float* __restrict w, float* __restrict th) {
+    for (size_t i = 0; i < n; ++i) {
+        const float Kz = r.kz0 + float(i) * r.dkz;
+        const float den = 2 * (Kz * r.ca + r.Kx * r.sa);
+        const float k = (r.Kx * r.Kx + Kz * Kz) / (den > 0 ? den : 1.0f);
+        const float kz = Kz - k * r.ca, kx = r.Kx - k * r.sa;
+        const bool ok = den > 0 && k >= r.k_lo && k <= r.k_hi && kz > 0;
+        const float kzs = ok ? kz : 1.0f;
+        float u = std::fabs(kx) / kzs * r.inv_tan;
+        const bool inside = u <= 1.0f;
+        u = inside ? u : 1.0f;
+        const float wa = table[int(u * float(table_n) + 0.5f)];
+        const float jac = 1 / (r.ca + (k + kx * r.sa) / kzs);
+        w[i] = (ok && inside) ? r.pref * wa * k / (kzs * std::sqrt(kzs)) * jac : 0.0f;
+        q[i] = k * r.c_over_dw - r.mb0;
+        th[i] = k * r.cT;
+    }
+}
+
 struct FftwFree {
     void operator()(void* p) const { fftwf_free(p); }
 };
@@ -245,6 +280,7 @@ struct WavenumberImager::Impl {
         cfloat* spec = nullptr;
         cfloat* zbuf = nullptr;
         cfloat* xbuf = nullptr;
+        std::vector<float> q, w, th;  // plane-wave Stolt column scratch
         ~Worker() {
             fftwf_free(rin);
             fftwf_free(spec);
@@ -467,6 +503,11 @@ struct WavenumberImager::Impl {
             W.zbuf = reinterpret_cast<cfloat*>(fftwf_alloc_complex(nz_n));
             W.xbuf = reinterpret_cast<cfloat*>(fftwf_alloc_complex(lx));
             if (!W.rin || !W.spec || !W.zbuf || !W.xbuf) throw std::bad_alloc();
+            if (!fmc) {
+                W.q.resize(size_t(j_hi - j_lo + 1));
+                W.w.resize(size_t(j_hi - j_lo + 1));
+                W.th.resize(size_t(j_hi - j_lo + 1));
+            }
         }
         {
             std::lock_guard<std::mutex> lk(detail::fftwPlannerMutex());
@@ -623,7 +664,8 @@ struct WavenumberImager::Impl {
         const long nK = 2 * kx_max + 1, nKz = j_hi - j_lo + 1;
         const double dw = 2 * kPi * fs / double(mt);
         const double pref0 = 2.0 / double(mt) / double(mx) * c * dkz / dw;
-        parallel(size_t(nK), [&](int, size_t ki) {
+        parallel(size_t(nK), [&](int wk, size_t ki) {
+            Worker& W = workers[size_t(wk)];
             const long K = long(ki) - kx_max;
             const double Kx = double(K) * dk;
             cfloat* col = kspace.get() + ki * size_t(nKz);
@@ -652,22 +694,26 @@ struct WavenumberImager::Impl {
                 if (kmin > kmax) continue;
                 auto kzOf = [&](double k) { return k * ca + std::sqrt(std::max(0.0, k * k - (Kx - k * sa) * (Kx - k * sa))); };
                 const long ja = std::max({j_lo, 1L, long(kzOf(kmin) / dkz) - 1}), jb = std::min(j_hi, long(kzOf(kmax) / dkz) + 2);
-                for (long j = ja; j <= jb; ++j) {
-                    const double Kz = double(j) * dkz;
-                    const double den = 2 * (Kz * ca + Kx * sa);
-                    if (den <= 0) continue;
-                    const double k = (Kx * Kx + Kz * Kz) / den;
-                    if (k < k_lo || k > k_hi) continue;
-                    const double kz = Kz - k * ca, kx = Kx - k * sa;
-                    if (kz <= 0) continue;
-                    const float wa = angleWeight(std::fabs(kx) / kz);
-                    if (wa == 0) continue;
-                    const double om = c * k;
-                    const cfloat s = interp(row, om / dw - double(mb0));
-                    // W = k^-1/2 (k / kz)^3/2; Jacobian dk/dKz = 1 / (cos a + (k + kx sin a) / kz).
-                    const double jac = 1 / (ca + (k + kx * sa) / kz);
-                    const double wgt = pref * wa * k / (kz * std::sqrt(kz)) * jac;
-                    col[j - j_lo] += s * expMinus(om * (t_c + t_b - sa * ag.x0 / c)) * float(wgt);
+                if (jb < ja) continue;
+                // W = k^-1/2 (k / kz)^3/2; Jacobian dk/dKz = 1 / (cos a + (k + kx sin a) / kz).
+                const PlaneWaveColumn pc{float(Kx),
+                                         float(ca),
+                                         float(sa),
+                                         float(double(ja) * dkz),
+                                         float(dkz),
+                                         float(k_lo),
+                                         float(k_hi),
+                                         float(1 / tan_lim),
+                                         float(c / dw),
+                                         float(mb0),
+                                         float(c * (t_c + t_b - sa * ag.x0 / c)),
+                                         float(pref)};
+                const size_t n = size_t(jb - ja + 1);
+                planeWaveMapping(pc, angle_table.data(), kAngleTable, n, W.q.data(), W.w.data(), W.th.data());
+                cfloat* out = col + (ja - j_lo);
+                for (size_t i = 0; i < n; ++i) {
+                    if (W.w[i] == 0) continue;
+                    out[i] += interp(row, W.q[i]) * expMinus(W.th[i]) * W.w[i];
                 }
             }
         });
