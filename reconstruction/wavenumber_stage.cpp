@@ -180,6 +180,36 @@ UMBRA_FK_WIDE void planeWaveMapping(const PlaneWaveColumn& r, const float* __res
     }
 }
 
+// One full-matrix Stolt pair (kt, kr) (a = kt^2, b = kr^2, akt = |kt|, akr = |kr|), n depth
+// wavenumbers Kz = kz0 + i dkz.
+struct FmcColumn {
+    float a, b, akt, akr, kz0, dkz, k_lo, k_hi, inv_tan, c_over_dw, mb0, cT, pref;
+};
+
+// For each Kz: u = (Kz + (b - a)/Kz)/2 = sqrt(k^2 - kt^2), v = Kz - u, k = sqrt(u^2 + a); bin q,
+// weight w (pref x apertures x W_t W_r x Jacobian = pref wa k / (sqrt(uv) Kz); 0 outside) and
+// phase k c T. Branch-free, vector clones per CPU.
+UMBRA_FK_WIDE void fmcMapping(const FmcColumn& r, const float* __restrict table, int table_n, size_t n, float* __restrict q,
+                              float* __restrict w, float* __restrict th) {
+    for (size_t i = 0; i < n; ++i) {
+        const float Kz = r.kz0 + float(i) * r.dkz;
+        const float Kzs = Kz > 0 ? Kz : 1.0f;
+        const float u = (Kzs + (r.b - r.a) / Kzs) * 0.5f, v = Kzs - u;
+        bool ok = Kz > 0 && u > 0 && v > 0;
+        const float us = ok ? u : 1.0f, vs = ok ? v : 1.0f;
+        const float k = std::sqrt(us * us + r.a);
+        ok = ok && k >= r.k_lo && k <= r.k_hi;
+        float ut = r.akt / us * r.inv_tan, ur = r.akr / vs * r.inv_tan;
+        const bool inside = ut <= 1.0f && ur <= 1.0f;
+        ut = ut <= 1.0f ? ut : 1.0f;
+        ur = ur <= 1.0f ? ur : 1.0f;
+        const float wa = table[int(ut * float(table_n) + 0.5f)] * table[int(ur * float(table_n) + 0.5f)];
+        w[i] = (ok && inside) ? r.pref * wa * k / (std::sqrt(us * vs) * Kzs) : 0.0f;
+        q[i] = k * r.c_over_dw - r.mb0;
+        th[i] = k * r.cT;
+    }
+}
+
 struct FftwFree {
     void operator()(void* p) const { fftwf_free(p); }
 };
@@ -280,7 +310,7 @@ struct WavenumberImager::Impl {
         cfloat* spec = nullptr;
         cfloat* zbuf = nullptr;
         cfloat* xbuf = nullptr;
-        std::vector<float> q, w, th;  // plane-wave Stolt column scratch
+        std::vector<float> q, w, th;  // Stolt column scratch
         ~Worker() {
             fftwf_free(rin);
             fftwf_free(spec);
@@ -503,11 +533,9 @@ struct WavenumberImager::Impl {
             W.zbuf = reinterpret_cast<cfloat*>(fftwf_alloc_complex(nz_n));
             W.xbuf = reinterpret_cast<cfloat*>(fftwf_alloc_complex(lx));
             if (!W.rin || !W.spec || !W.zbuf || !W.xbuf) throw std::bad_alloc();
-            if (!fmc) {
-                W.q.resize(size_t(j_hi - j_lo + 1));
-                W.w.resize(size_t(j_hi - j_lo + 1));
-                W.th.resize(size_t(j_hi - j_lo + 1));
-            }
+            W.q.resize(size_t(j_hi - j_lo + 1));
+            W.w.resize(size_t(j_hi - j_lo + 1));
+            W.th.resize(size_t(j_hi - j_lo + 1));
         }
         {
             std::lock_guard<std::mutex> lk(detail::fftwPlannerMutex());
@@ -629,7 +657,8 @@ struct WavenumberImager::Impl {
         const long nK = 2 * kx_max + 1, nKz = j_hi - j_lo + 1;
         const double dw = 2 * kPi * fs / double(mt);
         const double pref = 2.0 / double(mt) / (double(mx) * double(mx)) * c * dkz / dw;
-        parallel(size_t(nK), [&](int, size_t ki) {
+        parallel(size_t(nK), [&](int wk, size_t ki) {
+            Worker& W = workers[size_t(wk)];
             const long K = long(ki) - kx_max;
             cfloat* col = kspace.get() + ki * size_t(nKz);
             std::fill(col, col + nKz, cfloat(0));
@@ -639,22 +668,25 @@ struct WavenumberImager::Impl {
                 const double mult = symmetric && it < ir ? 2.0 : 1.0;
                 const double kt = double(it) * dk, kr = double(ir) * dk;
                 const double a = kt * kt, b = kr * kr;
+                // Band and aperture: k >= |kt| / sin_lim and |kr| / sin_lim; Kz(k) = sqrt(k^2 - kt^2)
+                // + sqrt(k^2 - kr^2) rises with k, so the band's ends bound j.
+                const double kmin = std::max(k_lo, std::max(std::fabs(kt), std::fabs(kr)) / sin_lim);
+                if (kmin > k_hi) continue;
+                auto kzOf = [&](double k) { return std::sqrt(std::max(0.0, k * k - a)) + std::sqrt(std::max(0.0, k * k - b)); };
+                const long ja = std::max({j_lo, 1L, long(kzOf(kmin) / dkz) - 1}), jb = std::min(j_hi, long(kzOf(k_hi) / dkz) + 2);
+                if (jb < ja) continue;
                 const size_t rt = size_t(((it % long(mx)) + long(mx)) % long(mx)), rr = size_t(((ir % long(mx)) + long(mx)) % long(mx));
                 const cfloat* row = data.get() + (rt * mx + rr) * nbp;
-                for (long j = std::max(j_lo, 1L); j <= j_hi; ++j) {
-                    const double kz = double(j) * dkz;
-                    const double u = (kz + (b - a) / kz) / 2, v = kz - u;  // sqrt(k^2 - kt^2), sqrt(k^2 - kr^2)
-                    if (u <= 0 || v <= 0) continue;
-                    const double k = std::sqrt(u * u + a);
-                    if (k < k_lo || k > k_hi) continue;
-                    const float wa = angleWeight(std::fabs(kt) / u) * angleWeight(std::fabs(kr) / v);
-                    if (wa == 0) continue;
-                    const double om = c * k;
-                    const cfloat s = interp(row, om / dw - double(mb0));
-                    // W_t W_r = k^2 / (u v)^(3/2); Jacobian dk/dKz = u v / (k Kz).
-                    const double uv = u * v;
-                    const double wgt = mult * pref * wa * k / (std::sqrt(uv) * kz);
-                    col[j - j_lo] += s * expMinus(om * (t_c + t_b)) * float(wgt);
+                // W_t W_r = k^2 / (u v)^(3/2); Jacobian dk/dKz = u v / (k Kz).
+                const FmcColumn fc{float(a),         float(b),     float(std::fabs(kt)), float(std::fabs(kr)), float(double(ja) * dkz),
+                                   float(dkz),       float(k_lo),  float(k_hi),          float(1 / tan_lim),   float(c / dw),
+                                   float(mb0),       float(c * (t_c + t_b)), float(mult * pref)};
+                const size_t n = size_t(jb - ja + 1);
+                fmcMapping(fc, angle_table.data(), kAngleTable, n, W.q.data(), W.w.data(), W.th.data());
+                cfloat* out = col + (ja - j_lo);
+                for (size_t i = 0; i < n; ++i) {
+                    if (W.w[i] == 0) continue;
+                    out[i] += interp(row, W.q[i]) * expMinus(W.th[i]) * W.w[i];
                 }
             }
         });
