@@ -292,6 +292,8 @@ struct WavenumberImager::Impl {
     std::vector<float> angle_table;    // aperture weight at u = tan(angle) / tan_lim, kAngleTable + 1 steps over [0, 1]
     std::vector<cfloat> phase_table;   // exp(-i 2 pi n / kPhaseTable), n = 0 .. kPhaseTable
     std::vector<float> norm;           // [nz_out][nx_out] aperture weight sum per pixel (0: pixel not imaged)
+    std::vector<size_t> col_i0, col_i1;  // per output column: native lateral samples either side
+    std::vector<float> col_fr;         // and the fraction between them
     bool symmetric = false;            // full matrix, one element set, reciprocity on: kt <= kr pairs once, doubled
     std::vector<double> cum_window;    // cumulative integral of the aperture window over u in [-1, 1]
     std::vector<double> col_prefix_tx, col_prefix_rx;  // prefix sums of space_w over columns used
@@ -502,6 +504,19 @@ struct WavenumberImager::Impl {
             std::sort(a.begin(), a.end());
             std::sort(b.begin(), b.end());
             symmetric = a == b;
+        }
+        // Output columns on the native lateral grid (period Mx dx, lx samples from x0), wrapped.
+        {
+            const std::vector<double> gx = grid.xAxis();
+            const double dxn = double(mx) * ag.dx / double(lx);
+            for (double x : gx) {
+                double p = (x - ag.x0) / dxn;
+                p -= std::floor(p / double(lx)) * double(lx);
+                const size_t i0 = std::min(size_t(p), lx - 1);
+                col_i0.push_back(i0);
+                col_i1.push_back((i0 + 1) % lx);
+                col_fr.push_back(float(p - double(i0)));
+            }
         }
         // Per-pixel normalisation (does not depend on the data): dx / sqrt(2 pi z) per one-way
         // propagation times the aperture weight sums; pixels beyond half the lateral padding
@@ -831,7 +846,6 @@ struct WavenumberImager::Impl {
         });
         // Lateral: Kx = K dk at native positions x0 + n (Mx dx) / lx; linear interpolation onto the
         // output columns; divide by the aperture weight sum.
-        const double period = double(mx) * ag.dx, dxn = period / double(lx);
         parallel(nzo, [&](int w, size_t l) {
             Worker& W = workers[size_t(w)];
             const float* nr = norm.data() + l * nxo;
@@ -843,12 +857,9 @@ struct WavenumberImager::Impl {
             fftwf_execute_dft(xplan.p, reinterpret_cast<fftwf_complex*>(W.xbuf), reinterpret_cast<fftwf_complex*>(W.xbuf));
             for (size_t i = 0; i < nxo; ++i) {
                 if (nr[i] == 0) continue;
-                double p = (f.x_m[i] - ag.x0) / dxn;
-                p -= std::floor(p / double(lx)) * double(lx);
-                const size_t i0 = std::min(size_t(p), lx - 1), i1 = (i0 + 1) % lx;
-                const float fr = float(p - double(i0));
-                const cfloat v = W.xbuf[i0] * (1 - fr) + W.xbuf[i1] * fr;
-                f.envelope[l * nxo + i] = std::abs(v) * nr[i];
+                const float fr = col_fr[i];
+                const cfloat v = W.xbuf[col_i0[i]] * (1 - fr) + W.xbuf[col_i1[i]] * fr;
+                f.envelope[l * nxo + i] = std::sqrt(v.real() * v.real() + v.imag() * v.imag()) * nr[i];
             }
         });
         seconds.emplace_back("inverse FFT + interpolation", since(t0));
