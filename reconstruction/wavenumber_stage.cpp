@@ -83,6 +83,7 @@ namespace {
 
 constexpr double kPi = 3.14159265358979323846;
 constexpr size_t kMaxTransformBytes = size_t(1) << 30;
+constexpr size_t kRawBlockBytes = size_t(64) << 20;  // raw traces read per batch of transmits
 constexpr int kTaps = 6;          // Lanczos-3 interpolation along frequency
 constexpr int kFractions = 512;   // table resolution of the fractional bin position
 constexpr size_t kChunk = 8;      // frequency bins per strided lateral FFT (one cache line)
@@ -304,7 +305,8 @@ struct WavenumberImager::Impl {
     CBuf data;                         // FMC [Mx][Mx][nbp]; plane wave [ntx][Mx][nbp]
     size_t data_size = 0;
     CBuf kspace;                       // [2 kx_max + 1][nKz]
-    std::vector<float> raw;            // one transmit block [nrx][ns]
+    std::vector<float> raw;            // a block of transmits [block_tx][nrx][ns]
+    size_t block_tx = 1;
     Plan lateral_plan;                 // strided FFT along the receive index, kChunk bins
     Plan transmit_plan;                // full matrix: strided FFT along the transmit index, kChunk bins
     struct Worker {
@@ -492,7 +494,8 @@ struct WavenumberImager::Impl {
         data = allocComplex(data_size);
         kspace = allocComplex(size_t(2 * kx_max + 1) * size_t(j_hi - j_lo + 1));
         zrows.assign(nz_out * size_t(2 * kx_max + 1), cfloat(0));
-        raw.resize(nrx * ns);
+        block_tx = std::clamp<size_t>(kRawBlockBytes / std::max<size_t>(nrx * ns * sizeof(float), 1), 1, ntx);
+        raw.resize(block_tx * nrx * ns);
         lanczos = lanczosTable();
         angle_table.resize(kAngleTable + 1);
         for (int i = 0; i <= kAngleTable; ++i) angle_table[size_t(i)] = angle_window ? float(window(double(i) / kAngleTable)) : 1.0f;
@@ -633,12 +636,13 @@ struct WavenumberImager::Impl {
         return s;
     }
 
-    // Time FFT of every trace of one transmit into the data array.
-    void timeTransform(size_t t) {
+    // Time FFT of every trace of transmits [tb0, tb1) (read into raw) into the data array.
+    void timeTransform(size_t tb0, size_t tb1) {
         const double x0 = ag.x0;
-        parallel(nrx, [&](int w, size_t r) {
+        parallel((tb1 - tb0) * nrx, [&](int w, size_t job) {
+            const size_t t = tb0 + job / nrx, r = job % nrx;
             Worker& W = workers[size_t(w)];
-            const float* in = raw.data() + r * ns + n_lo;
+            const float* in = raw.data() + job * ns + n_lo;
             std::memcpy(W.rin, in, nw * sizeof(float));
             std::fill(W.rin + nw, W.rin + mt, 0.0f);
             fftwf_execute_dft_r2c(r2c.p, W.rin, reinterpret_cast<fftwf_complex*>(W.spec));
@@ -775,30 +779,29 @@ struct WavenumberImager::Impl {
         };
         double t_read = 0, t_time = 0, t_lat = 0;
         std::fill(data.get(), data.get() + data_size, cfloat(0));
-        for (size_t t = 0; t < ntx; ++t) {
+        const size_t nchunks = nbp / kChunk;
+        for (size_t tb0 = 0; tb0 < ntx; tb0 += block_tx) {
+            const size_t tb1 = std::min(ntx, tb0 + block_tx);
             auto t0 = Clock::now();
-            cap.readBlock(frame, t, raw.data());
+            for (size_t t = tb0; t < tb1; ++t) cap.readBlock(frame, t, raw.data() + (t - tb0) * nrx * ns);
             t_read += since(t0);
             t0 = Clock::now();
-            timeTransform(t);
+            timeTransform(tb0, tb1);
             t_time += since(t0);
-            // FFT along the receive index (plane wave: element) of this transmit's slab while it is
-            // in cache.
+            // FFT along the receive index (plane wave: element) of each transmit's slab.
             t0 = Clock::now();
-            const size_t nchunks = nbp / kChunk;
-            cfloat* slab = data.get() + (fmc ? tx_col[t] : t) * mx * nbp;
-            parallel(nchunks, [&](int, size_t ch) {
-                auto* p = reinterpret_cast<fftwf_complex*>(slab + ch * kChunk);
+            parallel((tb1 - tb0) * nchunks, [&](int, size_t i) {
+                const size_t t = tb0 + i / nchunks;
+                auto* p = reinterpret_cast<fftwf_complex*>(data.get() + (fmc ? tx_col[t] : t) * mx * nbp + (i % nchunks) * kChunk);
                 fftwf_execute_dft(lateral_plan.p, p, p);
             });
             t_lat += since(t0);
-            if (t % 8 == 7) poll(0.5 * double(t + 1) / double(ntx));
+            poll(0.5 * double(tb1) / double(ntx));
         }
         seconds.emplace_back("read", t_read);
         seconds.emplace_back("time FFT", t_time);
 
         auto t0 = Clock::now();
-        const size_t nchunks = nbp / kChunk;
         if (fmc) {
             std::vector<size_t> cols;  // receive wavenumber indices the aperture reaches
             for (long ir = -kt_max; ir <= kt_max; ++ir) cols.push_back(size_t(((ir % long(mx)) + long(mx)) % long(mx)));
