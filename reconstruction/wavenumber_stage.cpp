@@ -636,6 +636,15 @@ struct WavenumberImager::Impl {
         return s;
     }
 
+    // Adds the mapped, interpolated and phase-corrected spectrum samples of one Stolt column
+    // (W.q, W.w, W.th for n depth wavenumbers) into out.
+    void accumulate(const Worker& W, const cfloat* row, size_t n, cfloat* out) const {
+        for (size_t i = 0; i < n; ++i) {
+            if (W.w[i] == 0) continue;
+            out[i] += interp(row, W.q[i]) * expMinus(W.th[i]) * W.w[i];
+        }
+    }
+
     // Time FFT of every trace of transmits [tb0, tb1) (read into raw) into the data array.
     void timeTransform(size_t tb0, size_t tb1) {
         const double x0 = ag.x0;
@@ -702,11 +711,7 @@ struct WavenumberImager::Impl {
                                    float(mb0),       float(c * (t_c + t_b)), float(mult * pref)};
                 const size_t n = size_t(jb - ja + 1);
                 fmcMapping(fc, angle_table.data(), kAngleTable, n, W.q.data(), W.w.data(), W.th.data());
-                cfloat* out = col + (ja - j_lo);
-                for (size_t i = 0; i < n; ++i) {
-                    if (W.w[i] == 0) continue;
-                    out[i] += interp(row, W.q[i]) * expMinus(W.th[i]) * W.w[i];
-                }
+                accumulate(W, row, n, col + (ja - j_lo));
             }
         });
     }
@@ -761,11 +766,7 @@ struct WavenumberImager::Impl {
                                          float(pref)};
                 const size_t n = size_t(jb - ja + 1);
                 planeWaveMapping(pc, angle_table.data(), kAngleTable, n, W.q.data(), W.w.data(), W.th.data());
-                cfloat* out = col + (ja - j_lo);
-                for (size_t i = 0; i < n; ++i) {
-                    if (W.w[i] == 0) continue;
-                    out[i] += interp(row, W.q[i]) * expMinus(W.th[i]) * W.w[i];
-                }
+                accumulate(W, row, n, col + (ja - j_lo));
             }
         });
     }
