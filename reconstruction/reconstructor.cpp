@@ -7,6 +7,7 @@
 #include <chrono>
 #include <cmath>
 #include <filesystem>
+#include <future>
 #include <map>
 #include <mutex>
 #include <numeric>
@@ -162,8 +163,19 @@ struct Reconstructor::Impl {
         std::vector<Pair> pairs;
     };
     std::vector<Worker> workers;
+    // SHA-256 of the capture file, started when the Reconstructor is made and computed on its
+    // own thread while the first frame is read and beamformed (the bytes come from the page
+    // cache the reader fills); collected when the first frame is finished.
+    std::shared_future<std::string> capture_hash;
 
     Impl(const core::CaptureReader& c, const core::Recipe& r, int nthreads) : cap(c), h(c.header()), recipe(r) {
+        capture_hash = std::async(std::launch::async, [path = c.path()] {
+                           try {
+                               return cachedSha256(path);
+                           } catch (const core::InputError&) {
+                               return std::string();
+                           }
+                       }).share();
         das = dasParams(recipe);
         if (das.method == "wavenumber") checkWavenumberCapture(h);
         model = makeDelayModel(h, recipe);
@@ -527,12 +539,8 @@ struct Reconstructor::Impl {
         f.recipe_json = recipe.toJson();
         f.frame_index = frame;
         const auto t0 = Clock::now();
-        try {
-            f.capture_sha256 = cachedSha256(cap.path());
-        } catch (const core::InputError&) {
-            f.capture_sha256.clear();
-        }
-        timings.stage_seconds.emplace_back("capture hash", since(t0));
+        f.capture_sha256 = capture_hash.get();  // waits only if hashing is slower than the frame
+        timings.stage_seconds.emplace_back("capture hash (wait)", since(t0));
         timings.total_seconds = since(t_start);
         timings.effective_terms = double(grid.nx() * grid.nz()) * double(ntx) * double(nrx);
     }
