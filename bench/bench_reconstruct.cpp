@@ -3,6 +3,7 @@
 // depend on the content) are written once to the temp directory.
 //   full matrix: 64 elements, 2000 samples, 256 x 256 grid   (target >= 2e9 effective terms/s)
 //   plane wave: 128 elements x 11 angles, 2000 samples, 400 x 400 grid (target < 100 ms/frame)
+//   both on a 512 x 512 grid with delay-and-sum and with wavenumber imaging (das.method)
 // Counters: terms_per_s = pixels x transmits x receives / wall time of the whole frame
 // (read + analytic + delay-and-sum + envelope, after one warm-up frame); das_terms_per_s = the same
 // over delay-and-sum time only.
@@ -60,11 +61,13 @@ std::string makeCapture(bool plane_wave) {
     return path;
 }
 
-void run(benchmark::State& state, bool plane_wave, const std::string& aperture, const std::string& interp, int upsampling = 0) {
+void run(benchmark::State& state, bool plane_wave, const std::string& aperture, const std::string& interp, int upsampling = 0,
+         size_t grid_n = 0, const std::string& method = "delay_and_sum") {
     const auto path = makeCapture(plane_wave);
     core::CaptureReader cap(path);
     auto r = recon::defaultRecipe();
-    const size_t n = plane_wave ? 400 : 256;
+    r.setText("das.method", method);
+    const size_t n = grid_n ? grid_n : plane_wave ? 400 : 256;
     // Region: the aperture width, depth 5 mm to 5 mm + width (square pixels).
     const double half = plane_wave ? 19.05 : 18.9;  // mm
     const double step = 2 * half / double(n - 1);
@@ -102,6 +105,11 @@ void BM_TfmFmc64Cubic(benchmark::State& s) { run(s, false, "f_number", "cubic");
 void BM_TfmFmc64LinearNoUpsampling(benchmark::State& s) { run(s, false, "f_number", "linear", 1); }
 void BM_PlaneWave128x11(benchmark::State& s) { run(s, true, "f_number", "linear"); }
 void BM_PlaneWave128x11FullAperture(benchmark::State& s) { run(s, true, "full", "linear"); }
+// Wavenumber imaging against delay-and-sum on a 512 x 512 grid (same region, default recipe).
+void BM_Fmc64Grid512Das(benchmark::State& s) { run(s, false, "f_number", "linear", 0, 512); }
+void BM_Fmc64Grid512Wavenumber(benchmark::State& s) { run(s, false, "f_number", "linear", 0, 512, "wavenumber"); }
+void BM_PlaneWave128x11Grid512Das(benchmark::State& s) { run(s, true, "f_number", "linear", 0, 512); }
+void BM_PlaneWave128x11Grid512Wavenumber(benchmark::State& s) { run(s, true, "f_number", "linear", 0, 512, "wavenumber"); }
 
 }  // namespace
 
@@ -111,4 +119,9 @@ BENCHMARK(BM_TfmFmc64Cubic)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseR
 BENCHMARK(BM_TfmFmc64LinearNoUpsampling)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(BM_PlaneWave128x11)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(BM_PlaneWave128x11FullAperture)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime();
+// Process CPU time (all threads) beside wall time: the machine is shared.
+BENCHMARK(BM_Fmc64Grid512Das)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK(BM_Fmc64Grid512Wavenumber)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK(BM_PlaneWave128x11Grid512Das)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK(BM_PlaneWave128x11Grid512Wavenumber)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_MAIN();

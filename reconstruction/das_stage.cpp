@@ -3,6 +3,8 @@
 
 #include <cmath>
 #include <cstdlib>
+#include <algorithm>
+#include <numeric>
 
 #include "core/error.h"
 #include "reconstruction/detail/spec_helpers.h"
@@ -16,7 +18,11 @@ core::StageSpec dasSpec() {
     return {"das",
             "Delay-and-sum",
             "Total focusing method (full matrix) or coherent compounding (plane wave, virtual source) on complex samples.",
-            {choiceParam("aperture", "Receive aperture",
+            {choiceParam("method", "Imaging method",
+                         "delay_and_sum: delay-and-sum in the time domain; wavenumber: f-k migration (full matrix) or Stolt migration "
+                         "(plane waves) in the wavenumber domain, for a linear array with evenly spaced elements in a homogeneous medium.",
+                         {"delay_and_sum", "wavenumber"}, "delay_and_sum"),
+             choiceParam("aperture", "Receive aperture",
                          "f_number: dynamic aperture of width depth / f-number centred on each pixel; full: every element.",
                          {"f_number", "full"}, "f_number"),
              realParam("f_number", "f-number", "Depth over aperture width for the dynamic aperture (receive, and transmit for full matrix).",
@@ -46,6 +52,7 @@ core::StageSpec dasSpec() {
 
 DasParams dasParams(const core::Recipe& r) {
     DasParams p;
+    p.method = r.text("das.method");
     p.aperture = r.text("das.aperture");
     p.f_number = r.number("das.f_number");
     p.apodization = r.text("das.apodization");
@@ -105,6 +112,23 @@ int upsamplingFactor(const DasParams& p, double fs_hz, double f0_hz) {
 double interpolationLossDb(const DasParams& p, double fs_hz, double f0_hz) {
     const int u = upsamplingFactor(p, fs_hz, f0_hz);
     return std::max(0.0, -20 * std::log10(interpolationGain(p.interpolation, f0_hz, fs_hz * u)));
+}
+
+std::vector<float> transmitWeights(const core::CaptureHeader& h, const DasParams& p) {
+    const size_t ntx = h.transmits();
+    std::vector<float> w(ntx, 1.0f);
+    if (h.transmit.kind == core::TransmitKind::SingleElement || ntx < 2 || p.transmit_weighting == "uniform") return w;
+    std::vector<size_t> order(ntx);
+    std::iota(order.begin(), order.end(), 0);
+    auto key = [&](size_t t) {
+        return h.transmit.kind == core::TransmitKind::PlaneWave ? h.transmit.angle_rad[t] : h.transmit.virtual_source_m[t][0];
+    };
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return key(a) < key(b); });
+    for (size_t k = 0; k < ntx; ++k) {
+        const double u = (double(k) - double(ntx - 1) / 2) / (double(ntx + 1) / 2);
+        w[order[k]] = apodizationWeight(p.transmit_weighting, u, p.tukey_alpha);
+    }
+    return w;
 }
 
 float apodizationWeight(const std::string& kind, double u, double alpha) {

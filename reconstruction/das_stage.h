@@ -17,11 +17,13 @@
 #include <string>
 #include <vector>
 
+#include "core/capture.h"
 #include "core/parameters.h"
 
 namespace umbra::recon {
 
 struct DasParams {
+    std::string method = "delay_and_sum";  ///< "delay_and_sum", or "wavenumber" (f-k / Stolt migration, reconstruction/wavenumber_stage.h)
     std::string aperture = "f_number";  ///< "f_number": dynamic aperture z / F# centred on the pixel; "full": every element
     double f_number = 1.0;              ///< receive (and, for full-matrix, transmit) f-number, > 0; default 1.0
     std::string apodization = "hann";   ///< window across the aperture: "rectangular", "hann", "tukey"
@@ -38,6 +40,10 @@ struct DasParams {
 core::StageSpec dasSpec();
 /// The stage's values from a recipe, checked (f-number > 0 etc.; SettingError otherwise).
 DasParams dasParams(const core::Recipe& r);
+
+/// Transmit weights per transmit event: 1 for full-matrix captures; for plane waves and virtual
+/// sources the das.transmit_weighting window over the events in angle (or source x) order.
+std::vector<float> transmitWeights(const core::CaptureHeader& h, const DasParams& p);
 
 /// Interpolation-loss target of the automatic upsampling factor, dB at the centre frequency.
 inline constexpr double kInterpolationLossTargetDb = 0.1;

@@ -15,12 +15,13 @@
 #include "reconstruction/grid_stage.h"
 #include "reconstruction/log_compression_stage.h"
 #include "reconstruction/tgc_stage.h"
+#include "reconstruction/wavenumber_stage.h"
 
 namespace umbra::recon {
 
 const std::vector<core::StageSpec>& allStages() {
     static const std::vector<core::StageSpec> stages = {bandpassSpec(),  analyticSpec(),       delayModelSpec(),
-                                                        dasSpec(),       envelopeSpec(),       tgcSpec(),
+                                                        dasSpec(),       wavenumberSpec(),     envelopeSpec(),       tgcSpec(),
                                                         logCompressionSpec(), colourMapSpec(), gridSpec()};
     return stages;
 }

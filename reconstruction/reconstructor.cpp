@@ -23,6 +23,7 @@
 #include "reconstruction/envelope_stage.h"
 #include "reconstruction/grid_stage.h"
 #include "reconstruction/pipeline.h"
+#include "reconstruction/wavenumber_stage.h"
 
 namespace umbra::recon {
 namespace {
@@ -144,6 +145,7 @@ struct Reconstructor::Impl {
     detail::DasKernels kernels = detail::bestKernels();
     enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
     bool full_aperture = false;
+    std::unique_ptr<WavenumberImager> wavenumber;  // das.method = wavenumber: replaces the delay-and-sum below
 
 
     struct Worker {
@@ -175,9 +177,16 @@ struct Reconstructor::Impl {
                            }
                        }).share();
         das = dasParams(recipe);
+        if (das.method == "wavenumber") checkWavenumberCapture(h);
         model = makeDelayModel(h, recipe);
         grid = resolveGrid(h, recipe);
         fidelity_db = recon::amplitudeFidelityDb(h, recipe, grid);
+        if (das.method == "wavenumber") {
+            wavenumber = std::make_unique<WavenumberImager>(c, recipe, grid, nthreads);
+            ntx = h.transmits();
+            nrx = h.receives();
+            return;
+        }
         ns = h.samples;
         nrx = h.receives();
         ntx = h.transmits();
@@ -214,19 +223,7 @@ struct Reconstructor::Impl {
         }
 
         // Transmit weighting over angles / virtual sources, by rank of the angle (or source x).
-        tx_weight.assign(ntx, 1.0f);
-        if (h.transmit.kind != core::TransmitKind::SingleElement && ntx > 1 && das.transmit_weighting != "uniform") {
-            std::vector<size_t> order(ntx);
-            std::iota(order.begin(), order.end(), 0);
-            auto key = [&](size_t t) {
-                return h.transmit.kind == core::TransmitKind::PlaneWave ? h.transmit.angle_rad[t] : h.transmit.virtual_source_m[t][0];
-            };
-            std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return key(a) < key(b); });
-            for (size_t k = 0; k < ntx; ++k) {
-                const double u = (double(k) - double(ntx - 1) / 2) / (double(ntx + 1) / 2);
-                tx_weight[order[k]] = apodizationWeight(das.transmit_weighting, u, das.tukey_alpha);
-            }
-        }
+        tx_weight = transmitWeights(h, das);
 
         // Tiles: 2-D blocks (32 pixels wide) of about das.tile_pixels pixels.
         const size_t nx = grid.nx(), nz = grid.nz();
@@ -445,8 +442,13 @@ struct Reconstructor::Impl {
                                      " frame(s)");
         timings = Timings{};
         const auto t_start = Clock::now();
-        double t_read = 0, t_analytic = 0, t_das = 0;
         const size_t npix = grid.nx() * grid.nz();
+        if (wavenumber) {
+            core::Frame f = wavenumber->run(frame, progress, timings.stage_seconds);
+            finish(f, frame, t_start);
+            return f;
+        }
+        double t_read = 0, t_analytic = 0, t_das = 0;
         acc.assign(2 * acc_pixels, 0.0f);
         acc_w.assign(acc_pixels, 0.0f);
         if (das.coherence_factor) acc_s2.assign(acc_pixels, 0.0f);
@@ -525,22 +527,22 @@ struct Reconstructor::Impl {
                     f.envelope[(T.iz0 + j) * nx + T.ix0 + i] = e;
                 }
         const double t_env = since(t0);
+        if (progress.progress) progress.progress(1.0);
+        timings.stage_seconds = {{"read", t_read}, {"band-pass + analytic signal", t_analytic}, {"delay-and-sum", t_das}, {"envelope", t_env}};
+        for (auto& w : workers) timings.executed_terms += w.executed;
+        finish(f, frame, t_start);
+        return f;
+    }
+
+    // Recipe, frame index and capture hash into the frame; total time and terms.
+    void finish(core::Frame& f, size_t frame, Clock::time_point t_start) {
         f.recipe_json = recipe.toJson();
         f.frame_index = frame;
-        t0 = Clock::now();
+        const auto t0 = Clock::now();
         f.capture_sha256 = capture_hash.get();  // waits only if hashing is slower than the frame
-        const double t_hash = since(t0);
-        if (progress.progress) progress.progress(1.0);
-
-        timings.stage_seconds = {{"read", t_read},
-                                 {"band-pass + analytic signal", t_analytic},
-                                 {"delay-and-sum", t_das},
-                                 {"envelope", t_env},
-                                 {"capture hash (wait)", t_hash}};
+        timings.stage_seconds.emplace_back("capture hash (wait)", since(t0));
         timings.total_seconds = since(t_start);
-        timings.effective_terms = double(npix) * double(ntx) * double(nrx);
-        for (auto& w : workers) timings.executed_terms += w.executed;
-        return f;
+        timings.effective_terms = double(grid.nx() * grid.nz()) * double(ntx) * double(nrx);
     }
 };
 

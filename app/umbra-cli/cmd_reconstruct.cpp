@@ -91,10 +91,15 @@ int cmdReconstruct(const Argv& argv) {
             double das = 0;
             for (auto& [name, s] : r.stage_seconds)
                 if (name == "delay-and-sum") das = s;
-            std::printf("throughput      %.3g effective terms/s in delay-and-sum (pixels x transmits x receives / s); %.3g end to end\n",
-                        das > 0 ? terms / das : 0.0, total > 0 ? terms / total : 0.0);
-            std::printf("executed        %.3g terms evaluated (%.0f %% of effective: reciprocity and aperture skipping), %.3g terms/s\n", executed,
-                        terms > 0 ? 100 * executed / terms : 0.0, das > 0 ? executed / das : 0.0);
+            if (das > 0) {
+                std::printf("throughput      %.3g effective terms/s in delay-and-sum (pixels x transmits x receives / s); %.3g end to end\n",
+                            terms / das, total > 0 ? terms / total : 0.0);
+                std::printf("executed        %.3g terms evaluated (%.0f %% of effective: reciprocity and aperture skipping), %.3g terms/s\n",
+                            executed, terms > 0 ? 100 * executed / terms : 0.0, executed / das);
+            } else {  // das.method = wavenumber: no delay-and-sum terms
+                std::printf("throughput      %.3g effective terms/s end to end (pixels x transmits x receives / s; wavenumber imaging)\n",
+                            total > 0 ? terms / total : 0.0);
+            }
         }
         return 0;
     } catch (const UsageError& e) {

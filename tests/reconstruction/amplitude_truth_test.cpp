@@ -22,27 +22,8 @@ using namespace umbra;
 
 namespace {
 
-struct PeakAt {
-    double x_m, z_m, v;
-};
-
-// Peak of a frame, refined to sub-pixel position by a parabola through the neighbours.
-PeakAt framePeak(const core::Frame& f) {
-    size_t bi = 0, bj = 0;
-    float bv = -1;
-    for (size_t iz = 0; iz < f.nz(); ++iz)
-        for (size_t ix = 0; ix < f.nx(); ++ix)
-            if (f.at(iz, ix) > bv) bv = f.at(iz, ix), bi = iz, bj = ix;
-    auto vertex = [](double a, double b, double c) {
-        const double d = a - 2 * b + c;
-        return d < 0 ? 0.5 * (a - c) / d : 0.0;
-    };
-    double dx = 0, dz = 0;
-    if (bj > 0 && bj + 1 < f.nx()) dx = vertex(f.at(bi, bj - 1), bv, f.at(bi, bj + 1));
-    if (bi > 0 && bi + 1 < f.nz()) dz = vertex(f.at(bi - 1, bj), bv, f.at(bi + 1, bj));
-    const double step = f.x_m.size() > 1 ? f.x_m[1] - f.x_m[0] : 0;
-    return {f.x_m[bj] + dx * step, f.z_m[bi] + dz * step, bv};
-}
+using testutil::framePeak;
+using testutil::PeakAt;
 
 // A 2 mm square region around (x, z) with a fine step (lambda/60 in steel at 5 MHz), so the
 // grid loses nothing measurable: what is left is the beamformer's own amplitude.

@@ -16,6 +16,7 @@
 
 #include "core/capture.h"
 #include "core/capture_file.h"
+#include "core/frame.h"
 
 namespace umbra::testutil {
 
@@ -106,6 +107,31 @@ inline core::CaptureHeader writePointCapture(const std::string& path, const Synt
     }
     w.finish();
     return h;
+}
+
+struct PeakAt {
+    double x_m, z_m, v;
+};
+
+/// Largest pixel of a frame, within +-half_m of (x_m, z_m) when half_m > 0, refined to sub-pixel
+/// position by a parabola through its neighbours in x and in z.
+inline PeakAt framePeak(const core::Frame& f, double x_m = 0, double z_m = 0, double half_m = 0) {
+    size_t bi = 0, bj = 0;
+    float bv = -1;
+    for (size_t iz = 0; iz < f.nz(); ++iz)
+        for (size_t ix = 0; ix < f.nx(); ++ix) {
+            if (half_m > 0 && (std::fabs(f.x_m[ix] - x_m) > half_m || std::fabs(f.z_m[iz] - z_m) > half_m)) continue;
+            if (f.at(iz, ix) > bv) bv = f.at(iz, ix), bi = iz, bj = ix;
+        }
+    auto vertex = [](double a, double b, double c) {
+        const double d = a - 2 * b + c;
+        return d < 0 ? 0.5 * (a - c) / d : 0.0;
+    };
+    double dx = 0, dz = 0;
+    if (bj > 0 && bj + 1 < f.nx()) dx = vertex(f.at(bi, bj - 1), bv, f.at(bi, bj + 1));
+    if (bi > 0 && bi + 1 < f.nz()) dz = vertex(f.at(bi - 1, bj), bv, f.at(bi + 1, bj));
+    const double step = f.x_m.size() > 1 ? f.x_m[1] - f.x_m[0] : 0;
+    return {f.x_m[bj] + dx * step, f.z_m[bi] + dz * step, bv};
 }
 
 /// This test process's scratch directory (removed when the process exits).
