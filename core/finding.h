@@ -49,7 +49,7 @@ struct Finding {
     std::string criterion;  ///< the acceptance criterion used (code, clause, limit)
 
     bool interpretationUnlocked() const { return indication.isDescribed(); }
-    /// Indication described AND interpreted as relevant.
+    /// Indication described AND interpreted as relevant AND a reason given for that interpretation.
     bool evaluationUnlocked() const;
     /// False for false / non-relevant indications (evaluation not applicable to them).
     bool evaluationApplicable() const;

@@ -45,6 +45,11 @@ TEST(finding_test, evaluation_only_for_relevant_indications) {
     EXPECT_FALSE(f.evaluationUnlocked());
     EXPECT_FALSE(f.evaluationApplicable());
     f.interpretation = Interpretation::Relevant;
+    EXPECT_FALSE(f.evaluationUnlocked());  // an interpretation without a reason is not complete
+    EXPECT_NE(f.evaluationLockReason().find("reason"), std::string::npos);
+    f.interpretation_reason = "  ";
+    EXPECT_FALSE(f.evaluationUnlocked());  // blank does not count
+    f.interpretation_reason = "echo from both sides of the weld";
     EXPECT_TRUE(f.evaluationUnlocked());
     EXPECT_TRUE(f.evaluationApplicable());
     EXPECT_TRUE(f.evaluationLockReason().empty());
@@ -56,7 +61,7 @@ TEST(finding_test, evaluation_only_for_relevant_indications) {
     EXPECT_EQ(f.evaluation, Evaluation::Rejectable);
 }
 
-// Descriptive reporting avoids hedges (common practice; listed in the project's field guide).
+// Descriptive reporting avoids hedges (common practice, no single published source).
 TEST(finding_test, hedging_words_are_flagged_in_order) {
     EXPECT_EQ(hedgingWords("Possible crack, likely lack of fusion; porosity cannot be excluded."),
               (std::vector<std::string>{"possible", "likely", "cannot be excluded"}));

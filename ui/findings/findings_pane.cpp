@@ -421,6 +421,7 @@ void FindingsPane::buildUi() {
     connect(reason_, &QLineEdit::textEdited, this, [this](const QString& t) {
         if (auto* f = current()) {
             f->interpretation_reason = t.toStdString();
+            updateHedgeNote();
             findingChanged(tr("Edit interpretation reason"));
         }
     });
@@ -599,7 +600,9 @@ void FindingsPane::updateLocks() {
 
 void FindingsPane::updateHedgeNote() {
     const core::Finding* f = current();
-    const std::string note = f ? core::hedgingNote(core::hedgingWords(f->indication.description)) : std::string();
+    // Hedges weaken the description and the interpretation's reason alike.
+    const std::string note =
+        f ? core::hedgingNote(core::hedgingWords(f->indication.description + "\n" + f->interpretation_reason)) : std::string();
     hedge_note_->setText(q(note));
     hedge_note_->setVisible(!note.empty());
 }
