@@ -137,6 +137,7 @@ void FindingsPane::buildUi() {
     auto* scroll = new QScrollArea;
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
+    scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);  // the pane wraps; it never scrolls sideways
     auto* content = new QWidget;
     auto* v = new QVBoxLayout(content);
     v->setContentsMargins(0, 0, 0, 0);
@@ -156,7 +157,7 @@ void FindingsPane::buildUi() {
     technique_ = new QPlainTextEdit;
     technique_->setObjectName(QStringLiteral("technique"));
     technique_->setReadOnly(true);
-    technique_->setMaximumHeight(90);
+    technique_->setMaximumHeight(150);
     cf->addWidget(technique_);
     v->addWidget(case_box);
 
@@ -166,6 +167,9 @@ void FindingsPane::buildUi() {
     list_ = new QListWidget;
     list_->setObjectName(QStringLiteral("findingList"));
     list_->setMaximumHeight(110);
+    list_->setWordWrap(true);
+    list_->setTextElideMode(Qt::ElideNone);
+    list_->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     lv->addWidget(list_);
     auto* lb = new QHBoxLayout;
     add_ = new QPushButton(tr("Add finding"));

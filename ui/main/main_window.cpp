@@ -186,6 +186,7 @@ void MainWindow::buildDocks() {
     resizeDocks({td}, {240}, Qt::Vertical);
     resizeDocks({td, top_dock_}, {880, 520}, Qt::Horizontal);
     resizeDocks({fd, md}, {420, 260}, Qt::Vertical);
+    resizeDocks({fd}, {390}, Qt::Horizontal);
 }
 
 void MainWindow::buildActions() {
@@ -802,6 +803,7 @@ void MainWindow::demoAnnotate() {
     ctl_->addMeasurement(cal);
     ctl_->setSelectedMeasurement(QString::fromStdString(box_id));
     const std::string fid = ctl_->addFindingFromMeasurement(box_id);
+    if (auto* pane = qobject_cast<FindingsPane*>(findings_)) pane->selectFinding(QString::fromStdString(fid));
     auto fs = ctl_->findings();
     for (auto& x : fs)
         if (x.id == fid)
