@@ -2,6 +2,7 @@
 #include "core/capture.h"
 
 #include <cmath>
+#include <cstdio>
 #include <string>
 
 #include "core/error.h"
@@ -174,6 +175,23 @@ std::vector<Problem> checkHeader(const CaptureHeader& h) {
             if (!finite(a)) { add("/truth/scatterer_amplitude", "non-finite amplitude"); break; }
     }
     return p;
+}
+
+std::vector<Problem> headerWarnings(const CaptureHeader& h) {
+    std::vector<Problem> w;
+    const double f0 = h.array.centre_frequency_hz, B = h.array.fractional_bandwidth, fs = h.receive.sampling_frequency_hz;
+    if (std::isfinite(f0) && f0 > 0 && std::isfinite(B) && B > 0 && std::isfinite(fs) && fs > 0) {
+        const double upper = f0 * (1 + B / 2);
+        if (fs < 2 * upper) {
+            char buf[256];
+            std::snprintf(buf, sizeof buf,
+                          "%.2f MHz is below twice the probe's upper -6 dB edge (2 x %.2f MHz = %.2f MHz): the upper part of the "
+                          "echo spectrum aliases",
+                          fs / 1e6, upper / 1e6, 2 * upper / 1e6);
+            w.push_back({"/receive@sampling_frequency_hz", buf});
+        }
+    }
+    return w;
 }
 
 }  // namespace umbra::core

@@ -107,6 +107,12 @@ struct CaptureHeader {
 /// each with the HDF5 path it concerns; empty when the header is good.
 std::vector<struct Problem> checkHeader(const CaptureHeader& h);
 
+/// Things in a valid header that a user should know (the capture is still read): each with the
+/// HDF5 path it concerns. Today: sampling below twice the probe's upper -6 dB edge f0 (1 + B/2)
+/// (B the -6 dB fractional bandwidth), where the upper part of the echo spectrum aliases
+/// (Nyquist-Shannon sampling theorem).
+std::vector<struct Problem> headerWarnings(const CaptureHeader& h);
+
 /// Upper bounds that protect against absurd headers (giant allocations).
 struct CaptureLimits {
     static constexpr size_t max_elements = 4096;

@@ -14,7 +14,7 @@ core::StageSpec analyticSpec() {
             "Hilbert transform by FFT: each trace becomes complex (I/Q) before delay-and-sum; always on.", {}};
 }
 
-AnalyticSignal::AnalyticSignal(size_t n) : n_(n) {
+AnalyticSignal::AnalyticSignal(size_t n, size_t upsample) : n_(n), up_(upsample < 1 ? 1 : upsample) {
     const size_t m = n ? n : 1;
     rin_ = fftwf_alloc_real(m);
     rout_ = fftwf_alloc_real(m);
@@ -25,6 +25,13 @@ AnalyticSignal::AnalyticSignal(size_t n) : n_(n) {
     std::lock_guard<std::mutex> lk(detail::fftwPlannerMutex());
     fwd_ = fftwf_plan_dft_r2c_1d(int(m), rin_, sp, FFTW_ESTIMATE);
     bwd_ = fftwf_plan_dft_c2r_1d(int(m), wk, rout_, FFTW_ESTIMATE);
+    if (up_ > 1) {
+        auto* us = fftwf_alloc_complex(m * up_);
+        auto* uo = fftwf_alloc_complex(m * up_);
+        up_spec_ = us;
+        up_out_ = uo;
+        up_plan_ = fftwf_plan_dft_1d(int(m * up_), us, uo, FFTW_BACKWARD, FFTW_ESTIMATE);
+    }
 }
 
 AnalyticSignal::~AnalyticSignal() {
@@ -32,11 +39,14 @@ AnalyticSignal::~AnalyticSignal() {
         std::lock_guard<std::mutex> lk(detail::fftwPlannerMutex());
         fftwf_destroy_plan(static_cast<fftwf_plan>(fwd_));
         fftwf_destroy_plan(static_cast<fftwf_plan>(bwd_));
+        if (up_plan_) fftwf_destroy_plan(static_cast<fftwf_plan>(up_plan_));
     }
     fftwf_free(rin_);
     fftwf_free(rout_);
     fftwf_free(spec_);
     fftwf_free(work_);
+    if (up_spec_) fftwf_free(up_spec_);
+    if (up_out_) fftwf_free(up_out_);
 }
 
 // Analytic signal z = IFFT(h X) with h[0] = 1, h[k] = 2 for 0 < k < n/2, h[n/2] = 1 (even n),
@@ -53,6 +63,23 @@ void AnalyticSignal::run(const float* in, float* out, const float* weights) {
     std::memcpy(rin_, in, n * sizeof(float));
     fftwf_execute_dft_r2c(static_cast<fftwf_plan>(fwd_), rin_, sp);
     const float inv = 1.0f / float(n);
+    if (up_ > 1) {
+        // Analytic spectrum h X (h = 1 at DC and Nyquist, 2 between) zero-padded to n U bins:
+        // the inverse gives the same band-limited signal sampled U times as densely.
+        auto* us = static_cast<fftwf_complex*>(up_spec_);
+        auto* uo = static_cast<fftwf_complex*>(up_out_);
+        const size_t m = n * up_;
+        std::memset(us, 0, m * sizeof(fftwf_complex));
+        for (size_t k = 0; k < nb; ++k) {
+            const float hk = (k == 0 || (even && k == nb - 1)) ? inv : 2 * inv;
+            const float wgt = weights ? weights[k] : 1.0f;
+            us[k][0] = sp[k][0] * wgt * hk;
+            us[k][1] = sp[k][1] * wgt * hk;
+        }
+        fftwf_execute_dft(static_cast<fftwf_plan>(up_plan_), us, uo);
+        std::memcpy(out, uo, m * sizeof(fftwf_complex));
+        return;
+    }
     // Real part.
     const float* re = in;
     if (weights) {

@@ -18,11 +18,14 @@ core::StageSpec bandpassSpec() {
     return {"bandpass",
             "Band-pass filter",
             "Optional zero-phase band-pass filter applied to every trace before beamforming.",
-            {flagParam("enabled", "Band-pass on", "Apply the band-pass filter to the traces (off: traces used as recorded).", false),
-             modalRealParam("low_mhz", "Low edge", "Lower -6 dB edge in MHz; 0 = centre frequency x (1 - fractional bandwidth).",
+            {flagParam("enabled", "Band-pass on",
+                       "Apply the band-pass filter to the traces (removes DC and out-of-band noise; off: traces used as recorded).", true),
+             modalRealParam("low_mhz", "Low edge",
+                            "Lower -6 dB edge in MHz; 0 = automatic: the probe's -6 dB band f0 (1 -/+ B/2) widened by its "
+                            "half-width each side, f0 (1 - B), and at least 0.1 f0.",
                             "MHz", 0, 1000, "automatic", 0.1),
-             modalRealParam("high_mhz", "High edge", "Upper -6 dB edge in MHz; 0 = centre frequency x (1 + fractional bandwidth).",
-                            "MHz", 0, 1000, "automatic", 0.1)}};
+             modalRealParam("high_mhz", "High edge", "Upper -6 dB edge in MHz; 0 = automatic: f0 (1 + B).", "MHz", 0, 1000,
+                            "automatic", 0.1)}};
 }
 
 BandpassParams bandpassParams(const core::Recipe& r) {
@@ -33,14 +36,20 @@ BandpassParams bandpassParams(const core::Recipe& r) {
     return p;
 }
 
-std::vector<float> bandpassWeights(const BandpassParams& p, size_t n, double fs_hz, double f0_hz, double fractional_bandwidth) {
-    std::vector<float> w(n / 2 + 1, 1.0f);
-    if (!p.enabled) return w;
-    const double lo = p.low_mhz > 0 ? p.low_mhz * 1e6 : std::max(0.0, f0_hz * (1 - fractional_bandwidth));
-    const double hi = p.high_mhz > 0 ? p.high_mhz * 1e6 : f0_hz * (1 + fractional_bandwidth);
+std::pair<double, double> bandpassEdgesHz(const BandpassParams& p, double f0_hz, double fractional_bandwidth) {
+    const double half = (1 + kBandpassMargin) * fractional_bandwidth / 2;
+    const double lo = p.low_mhz > 0 ? p.low_mhz * 1e6 : std::max(kBandpassMinLowFraction * f0_hz, f0_hz * (1 - half));
+    const double hi = p.high_mhz > 0 ? p.high_mhz * 1e6 : f0_hz * (1 + half);
     if (!(hi > lo))
         throw core::SettingError("band-pass: the low edge (" + std::to_string(lo / 1e6) + " MHz) must be below the high edge (" +
                                  std::to_string(hi / 1e6) + " MHz)");
+    return {lo, hi};
+}
+
+std::vector<float> bandpassWeights(const BandpassParams& p, size_t n, double fs_hz, double f0_hz, double fractional_bandwidth) {
+    std::vector<float> w(n / 2 + 1, 1.0f);
+    if (!p.enabled) return w;
+    const auto [lo, hi] = bandpassEdgesHz(p, f0_hz, fractional_bandwidth);
     const double tw = 0.25 * (hi - lo);  // transition width, centred on each edge
     auto edge = [&](double f, double e, bool rising) {
         double u = (f - (e - tw / 2)) / tw;  // 0..1 across the transition
@@ -52,6 +61,7 @@ std::vector<float> bandpassWeights(const BandpassParams& p, size_t n, double fs_
         const double f = double(k) * fs_hz / double(n);
         w[k] = float(edge(f, lo, true) * edge(f, hi, false));
     }
+    w[0] = 0;  // DC removed whatever the edges
     return w;
 }
 

@@ -28,7 +28,17 @@ core::StageSpec dasSpec() {
                          "Window over plane-wave angles or virtual sources (in angle order).", {"uniform", "hann", "tukey"}, "uniform"),
              choiceParam("interpolation", "Interpolation", "Interpolation of the complex samples at the delay: linear or cubic (Lagrange).",
                          {"linear", "cubic"}, "linear"),
-             flagParam("coherence_factor", "Coherence factor", "Weight each pixel by its coherence factor |sum|^2 / (N sum |.|^2).", false),
+             [] {
+                 auto u = intParam("upsampling", "Upsampling",
+                                   "Band-limited upsampling factor of the analytic traces before interpolation; 0 = automatic (the "
+                                   "smallest factor that keeps the interpolation loss at the centre frequency within 0.1 dB).",
+                                   0, kMaxUpsampling, 0);
+                 u.zero_means = "automatic";
+                 return u;
+             }(),
+             flagParam("coherence_factor", "Coherence factor",
+                       "Weight each pixel by its weighted coherence factor |sum w s|^2 / (sum w * sum w |s|^2) (1 for a coherent echo).",
+                       false),
              flagParam("reciprocity", "Use reciprocity",
                        "Full matrix with the same transmit and receive elements: sum each pair once, doubled (halves the work).", true),
              tile}};
@@ -42,13 +52,59 @@ DasParams dasParams(const core::Recipe& r) {
     p.tukey_alpha = r.number("das.tukey_alpha");
     p.transmit_weighting = r.text("das.transmit_weighting");
     p.interpolation = r.text("das.interpolation");
+    p.upsampling = r.integer("das.upsampling");
     p.coherence_factor = r.flag("das.coherence_factor");
     p.reciprocity = r.flag("das.reciprocity");
     p.tile_pixels = r.integer("das.tile_pixels");
     if (!(p.f_number > 0) || !std::isfinite(p.f_number))
         throw core::SettingError("das.f_number = " + std::to_string(p.f_number) + ": the f-number must be greater than 0");
     if (p.tile_pixels < 1) throw core::SettingError("das.tile_pixels must be at least 1");
+    if (p.upsampling < 0 || p.upsampling > kMaxUpsampling)
+        throw core::SettingError("das.upsampling = " + std::to_string(p.upsampling) + ": must be 0 (automatic) to " +
+                                 std::to_string(kMaxUpsampling));
     return p;
+}
+
+double interpolationGain(const std::string& kind, double f_hz, double fs_hz) {
+    if (!(fs_hz > 0) || !(f_hz > 0)) return 1;
+    const double th = 2 * M_PI * f_hz / fs_hz;  // phase step per sample
+    // Response at fraction f relative to the true value e^{j th f}; mean over f and worst f.
+    constexpr int kSteps = 256;
+    double mre = 0, mim = 0, worst = 1e300;
+    for (int i = 0; i < kSteps; ++i) {
+        const double f = (i + 0.5) / kSteps;
+        double re = 0, im = 0;
+        auto add = [&](double c, double k) {  // coefficient c on the sample at offset k
+            re += c * std::cos(th * (k - f));
+            im += c * std::sin(th * (k - f));
+        };
+        if (kind == "cubic") {
+            const double fm1 = f - 1, fm2 = f - 2, fp1 = f + 1;
+            add(-f * fm1 * fm2 / 6, -1);
+            add(fp1 * fm1 * fm2 / 2, 0);
+            add(-fp1 * f * fm2 / 2, 1);
+            add(fp1 * f * fm1 / 6, 2);
+        } else {
+            add(1 - f, 0);
+            add(f, 1);
+        }
+        mre += re / kSteps;
+        mim += im / kSteps;
+        worst = std::min(worst, std::hypot(re, im));
+    }
+    return std::min(worst, std::hypot(mre, mim));
+}
+
+int upsamplingFactor(const DasParams& p, double fs_hz, double f0_hz) {
+    if (p.upsampling > 0) return p.upsampling;
+    for (int u = 1; u < kMaxUpsampling; ++u)
+        if (-20 * std::log10(interpolationGain(p.interpolation, f0_hz, fs_hz * u)) <= kInterpolationLossTargetDb) return u;
+    return kMaxUpsampling;
+}
+
+double interpolationLossDb(const DasParams& p, double fs_hz, double f0_hz) {
+    const int u = upsamplingFactor(p, fs_hz, f0_hz);
+    return std::max(0.0, -20 * std::log10(interpolationGain(p.interpolation, f0_hz, fs_hz * u)));
 }
 
 float apodizationWeight(const std::string& kind, double u, double alpha) {
@@ -292,8 +348,8 @@ DasKernels bestKernels() {
 
 DasKernels scalarKernels() { return DasKernels{linearScalar, cubicScalar, linear2Scalar, "scalar"}; }
 
-void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, float mult,
-                  const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt) {
+void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                  float hi, size_t n, float* acc, float* s2) {
     for (size_t p = 0; p < n; ++p) {
         float q = (ta[p] + tb[p]) + off;
         q = q < 1.0f ? 1.0f : q;
@@ -312,14 +368,10 @@ void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const
             re = s[0] + f * (s[2] - s[0]);
             im = s[1] + f * (s[3] - s[1]);
         }
-        const float w1 = wt[p] * wr[p];
-        const float w = k * w1;
+        const float w = (k * wt[p]) * wr[p];
         acc[2 * p] += w * re;
         acc[2 * p + 1] += w * im;
-        // Each of the `mult` equal terms has weight k / mult.
-        const float wu = w1 * (k / mult);
-        s2[p] += mult * wu * wu * (re * re + im * im);
-        cnt[p] += w1 > 0 ? mult : 0.0f;
+        s2[p] += w * (re * re + im * im);
     }
 }
 

@@ -5,8 +5,14 @@
 // coherent compounding for plane_wave (Montaldo et al., IEEE TUFFC 56(3), 2009) and
 // virtual_source captures, on complex (analytic) samples. Receive apodization with a dynamic
 // aperture set by an f-number, transmit weighting, linear or cubic (4-point Lagrange)
-// interpolation, optional coherence-factor weighting (Hollman, Rigby & O'Donnell, IEEE
-// Ultrasonics Symposium 1999).
+// interpolation of the analytic signal after band-limited upsampling (so the interpolation
+// loses at most kInterpolationLossTargetDb at the centre frequency), optional coherence-factor
+// weighting (Hollman, Rigby & O'Donnell, IEEE Ultrasonics Symposium 1999, in its weighted form).
+//
+// Amplitude: each pixel's coherent sum is divided by the sum of the weights of its terms
+// (transmit weight x receive weight), so a pixel reads the weighted mean of the aligned echo
+// amplitudes: equal reflectors read equal at any depth and position inside the aperture,
+// whatever the f-number, window or number of elements.
 #include <cstddef>
 #include <string>
 #include <vector>
@@ -22,6 +28,7 @@ struct DasParams {
     double tukey_alpha = 0.5;           ///< tapered fraction of the Tukey window, [0, 1]; default 0.5
     std::string transmit_weighting = "uniform";  ///< window over plane-wave angles / virtual sources: "uniform", "hann", "tukey"
     std::string interpolation = "linear";        ///< complex-sample interpolation: "linear" or "cubic" (4-point Lagrange)
+    int upsampling = 0;  ///< band-limited upsampling factor of the analytic traces before interpolation; 0 (default) = automatic
     bool coherence_factor = false;               ///< multiply the image by the coherence factor
     bool reciprocity = true;  ///< full-matrix: sum tx < rx pairs once, doubled, plus the diagonal (halves the work)
     int tile_pixels = 1024;   ///< pixels per work tile (advanced; the image does not depend on it)
@@ -31,6 +38,22 @@ struct DasParams {
 core::StageSpec dasSpec();
 /// The stage's values from a recipe, checked (f-number > 0 etc.; SettingError otherwise).
 DasParams dasParams(const core::Recipe& r);
+
+/// Interpolation-loss target of the automatic upsampling factor, dB at the centre frequency.
+inline constexpr double kInterpolationLossTargetDb = 0.1;
+/// Largest automatic upsampling factor.
+inline constexpr int kMaxUpsampling = 16;
+
+/// Amplitude gain (<= 1) of the interpolator for a tone at f_hz sampled at fs_hz: the smaller
+/// of the response at the worst fractional delay and the mean complex response over all
+/// fractional delays (what a coherent sum of many terms with spread fractions sees).
+/// Linear: both are cos(pi f / fs). kind: "linear" or "cubic".
+double interpolationGain(const std::string& kind, double f_hz, double fs_hz);
+/// Upsampling factor used: p.upsampling when > 0, else the smallest U in [1, kMaxUpsampling]
+/// whose interpolation loss at f0 stays within kInterpolationLossTargetDb.
+int upsamplingFactor(const DasParams& p, double fs_hz, double f0_hz);
+/// Interpolation loss (dB, >= 0) at f0 with the upsampling factor the recipe gives.
+double interpolationLossDb(const DasParams& p, double fs_hz, double f0_hz);
 
 /// Window value at normalised aperture position u in [-1, 1] (0 at the centre; 0 outside).
 /// kind: "rectangular"/"uniform", "hann", "tukey" (alpha = tapered fraction).
@@ -71,10 +94,10 @@ DasKernels bestKernels();
 /// Every kernel set this CPU can run, fastest first (for tests).
 std::vector<DasKernels> availableKernels();
 
-/// As the kernels, and also accumulates |weighted sample|^2 into s2 and the number of
-/// contributing terms (weight > 0, counted `mult` times) into cnt, for the coherence factor.
-void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, float mult,
-                  const float* tr, float hi, size_t n, float* acc, float* s2, float* cnt);
+/// As the kernels, and also accumulates w |sample|^2 (w = k wt wr, the term's weight) into s2,
+/// for the weighted coherence factor.
+void dasCoherence(bool cubic, const float* ta, const float* tb, float off, const float* wt, const float* wr, float k, const float* tr,
+                  float hi, size_t n, float* acc, float* s2);
 }  // namespace detail
 
 }  // namespace umbra::recon

@@ -16,9 +16,9 @@ std::vector<float> envelope(const std::vector<std::complex<float>>& iq) {
     return e;
 }
 
-float coherenceFactor(float re, float im, float s2, float n) {
-    if (!(s2 > 0) || !(n > 0)) return 0;
-    return std::clamp((re * re + im * im) / (n * s2), 0.0f, 1.0f);
+float coherenceFactor(float re, float im, float s2, float w) {
+    if (!(s2 > 0) || !(w > 0)) return 0;
+    return std::clamp((re * re + im * im) / (w * s2), 0.0f, 1.0f);
 }
 
 }  // namespace umbra::recon

@@ -131,7 +131,9 @@ Grid resolveGrid(const core::CaptureHeader& h, const core::Recipe& r) {
         grid.step_m = g.step_mm * 1e-3;
     } else {
         if (!(h.array.centre_frequency_hz > 0)) throw core::SettingError("grid: automatic step needs the array's centre frequency");
-        const double s = stepForLossDb(widthsFor(h, r, grid.z_min_m), g.max_loss_db);
+        // The grid's share of the target is what the interpolation leaves of it.
+        const double interp = interpolationLossDb(dasParams(r), h.receive.sampling_frequency_hz, h.array.centre_frequency_hz);
+        const double s = stepForLossDb(widthsFor(h, r, grid.z_min_m), std::max(g.max_loss_db - interp, 0.05));
         grid.step_m = std::floor(s * 1e6) / 1e6;  // down to whole micrometres: loss stays within the target
         if (grid.step_m <= 0) grid.step_m = s;
     }
@@ -144,7 +146,8 @@ Grid resolveGrid(const core::CaptureHeader& h, const core::Recipe& r) {
 }
 
 double amplitudeFidelityDb(const core::CaptureHeader& h, const core::Recipe& r, const Grid& grid) {
-    return gaussianHalfPixelLossDb(widthsFor(h, r, grid.z_min_m), grid.step_m);
+    return gaussianHalfPixelLossDb(widthsFor(h, r, grid.z_min_m), grid.step_m) +
+           interpolationLossDb(dasParams(r), h.receive.sampling_frequency_hz, h.array.centre_frequency_hz);
 }
 
 double Timings::termsPerSecond() const {

@@ -40,8 +40,9 @@ struct Grid {
 /// non-positive step or more pixels than the limit.
 Grid resolveGrid(const core::CaptureHeader& h, const core::Recipe& r);
 
-/// Worst-case loss (dB, >= 0) of a point reflector's envelope peak when it falls between
-/// pixels of `grid`, computed from the point-spread function the capture and recipe give.
+/// Worst-case loss (dB, >= 0) of a point reflector's envelope peak: the loss when it falls
+/// between pixels of `grid` (from the point-spread function the capture and recipe give) plus
+/// the loss of the delay-and-sum interpolation at the centre frequency (interpolationLossDb).
 double amplitudeFidelityDb(const core::CaptureHeader& h, const core::Recipe& r, const Grid& grid);
 
 /// Plain callbacks for long runs. `progress` gets a fraction in [0, 1]; `cancelled` is polled

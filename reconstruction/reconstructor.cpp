@@ -122,7 +122,8 @@ struct Reconstructor::Impl {
     std::unique_ptr<detail::ThreadPool> pool;
 
     size_t ns = 0, nrx = 0, ntx = 0, stride = 0, block_tx = 1;
-    double fs = 0;
+    size_t up = 1, ns_up = 0;  // upsampling factor of the analytic traces; samples per upsampled trace
+    double fs = 0, fs_up = 0;  // recorded and upsampled sampling rates, Hz
     bool reciprocity = false;
     bool cubic = false;
     std::vector<int32_t> rx_el;        // receive channel -> element
@@ -138,7 +139,7 @@ struct Reconstructor::Impl {
     detail::BigBuffer iq_buf;  // [block_tx][nrx][stride][2]; guards zeroed once, data written per block
     size_t iq_size = 0;
     float* iqData() const { return iq_buf.get(); }
-    std::vector<float> acc, acc_s2, acc_n;  // tile-major; acc interleaved complex
+    std::vector<float> acc, acc_s2, acc_w;  // tile-major; acc interleaved complex; acc_w the sum of term weights
     detail::DasKernels kernels = detail::bestKernels();
     enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
     bool full_aperture = false;
@@ -146,7 +147,7 @@ struct Reconstructor::Impl {
 
     struct Worker {
         std::unique_ptr<AnalyticSignal> analytic;
-        std::vector<float> x, z, tof, w, txd, ones;
+        std::vector<float> x, z, tof, w, txd, ones, rsum, tsum;
         std::vector<uint8_t> any;
         std::vector<const float*> tx_delay, tx_weight;  // per transmit of the block
         std::vector<float> tx_off, tx_scale;
@@ -170,7 +171,10 @@ struct Reconstructor::Impl {
         ntx = h.transmits();
         fs = h.receive.sampling_frequency_hz;
         if (ns == 0 || nrx == 0 || ntx == 0 || !(fs > 0)) throw core::InputError(c.path(), "/data/rf", "the capture holds no traces to reconstruct");
-        stride = detail::traceStride(ns);
+        up = size_t(upsamplingFactor(das, fs, h.array.centre_frequency_hz));
+        ns_up = ns * up;
+        fs_up = fs * double(up);
+        stride = detail::traceStride(ns_up);
         cubic = das.interpolation == "cubic";
         bp_weights = bandpassWeights(bandpassParams(recipe), ns, fs, h.array.centre_frequency_hz, h.array.fractional_bandwidth);
         rx_el = h.receive.element_index;
@@ -237,13 +241,15 @@ struct Reconstructor::Impl {
         threads = std::clamp(threads, 1, 256);
         workers.resize(size_t(threads));
         for (auto& w : workers) {
-            w.analytic = std::make_unique<AnalyticSignal>(ns);
+            w.analytic = std::make_unique<AnalyticSignal>(ns, up);
             const size_t ne = used_el.size();
             w.x.resize(tile_max);
             w.z.resize(tile_max);
             w.tof.resize(ne * tile_max);
             w.w.resize(ne * tile_max);
             w.ones.assign(tile_max, 1.0f);
+            w.rsum.resize(tile_max);
+            w.tsum.resize(tile_max);
             w.any.resize(ne);
         }
         if (threads > 1) pool = std::make_unique<detail::ThreadPool>(threads);
@@ -307,7 +313,7 @@ struct Reconstructor::Impl {
             xhi = std::max(xhi, h.array.element_position_m[size_t(e)][0]);
         }
         const double xc = (xlo + xhi) / 2, half_len = (xhi - xlo) / 2 + pitch / 2;
-        const float ffs = float(fs);
+        const float ffs = float(fs_up);
         for (size_t s = 0; s < used_el.size(); ++s) {
             const auto& pos = h.array.element_position_m[size_t(used_el[s])];
             float* tof = W.tof.data() + s * tile_max;
@@ -318,8 +324,7 @@ struct Reconstructor::Impl {
         }
         float* ac = acc.data() + 2 * T.offset;
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
-        float* cn = das.coherence_factor ? acc_n.data() + T.offset : nullptr;
-        const float hi = float(ns + detail::kTracePad);
+        const float hi = float(ns_up + detail::kTracePad);
         // Transmit side of every event in the block: delay row (samples), weight row, offset.
         const size_t nb = b1 - b0;
         W.tx_delay.resize(nb);
@@ -330,7 +335,7 @@ struct Reconstructor::Impl {
         if (h.transmit.kind != core::TransmitKind::SingleElement && W.txd.size() < nb * tile_max) W.txd.resize(nb * tile_max);
         for (size_t t = b0; t < b1; ++t) {
             const size_t l = t - b0;
-            W.tx_off[l] = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs);
+            W.tx_off[l] = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs_up);
             W.tx_scale[l] = tx_weight[t];
             W.tx_el[l] = -1;
             switch (h.transmit.kind) {
@@ -357,6 +362,25 @@ struct Reconstructor::Impl {
                 }
             }
         }
+        // Sum of the weights of every term (transmit weight x receive weight) this block adds to
+        // each pixel: (sum over transmits of kt wt) x (sum over receives of wr). With reciprocity
+        // the doubled pairs give the same total.
+        std::fill(W.rsum.begin(), W.rsum.begin() + long(n), 0.0f);
+        std::fill(W.tsum.begin(), W.tsum.begin() + long(n), 0.0f);
+        for (size_t r = 0; r < nrx; ++r) {
+            const size_t s = size_t(slot_of_el[size_t(rx_el[r])]);
+            if (!W.any[s]) continue;
+            const float* wr = W.w.data() + s * tile_max;
+            for (size_t p = 0; p < n; ++p) W.rsum[p] += wr[p];
+        }
+        for (size_t l = 0; l < nb; ++l) {
+            const float kt = W.tx_scale[l];
+            if (kt == 0) continue;
+            const float* wt = W.tx_weight[l];
+            for (size_t p = 0; p < n; ++p) W.tsum[p] += kt * wt[p];
+        }
+        float* aw = acc_w.data() + T.offset;
+        for (size_t p = 0; p < n; ++p) aw[p] += W.tsum[p] * W.rsum[p];
         // Receive channel outer, transmit inner: the receive rows stay in L1 across transmits.
         // Every pixel's sum runs in this fixed order whatever the tile or thread.
         for (size_t r = 0; r < nrx; ++r) {
@@ -390,8 +414,7 @@ struct Reconstructor::Impl {
             for (; j < W.pairs.size(); ++j) {
                 const auto& a = W.pairs[j];
                 if (s2)
-                    detail::dasCoherence(cubic, W.tx_delay[a.l], tof, W.tx_off[a.l], W.tx_weight[a.l], wr, a.k, a.mult, trace(a.l), hi, n, ac,
-                                         s2, cn);
+                    detail::dasCoherence(cubic, W.tx_delay[a.l], tof, W.tx_off[a.l], W.tx_weight[a.l], wr, a.k, trace(a.l), hi, n, ac, s2);
                 else
                     (cubic ? kernels.cubic : kernels.linear)(W.tx_delay[a.l], tof, W.tx_off[a.l], W.tx_weight[a.l], wr, a.k, trace(a.l), hi, n,
                                                              ac);
@@ -413,10 +436,8 @@ struct Reconstructor::Impl {
         double t_read = 0, t_analytic = 0, t_das = 0;
         const size_t npix = grid.nx() * grid.nz();
         acc.assign(2 * acc_pixels, 0.0f);
-        if (das.coherence_factor) {
-            acc_s2.assign(acc_pixels, 0.0f);
-            acc_n.assign(acc_pixels, 0.0f);
-        }
+        acc_w.assign(acc_pixels, 0.0f);
+        if (das.coherence_factor) acc_s2.assign(acc_pixels, 0.0f);
         const size_t bsz = std::min(block_tx, ntx);
         if (raw_buf.size() != bsz * nrx * ns) raw_buf.reset(bsz * nrx * ns);
         float* raw = raw_buf.get();
@@ -426,7 +447,7 @@ struct Reconstructor::Impl {
             for (size_t tr = 0; tr < bsz * nrx; ++tr) {
                 float* p = iq_buf.get() + tr * stride * 2;
                 std::fill(p, p + 2 * detail::kTracePad, 0.0f);
-                std::fill(p + 2 * (detail::kTracePad + ns), p + 2 * stride, 0.0f);
+                std::fill(p + 2 * (detail::kTracePad + ns_up), p + 2 * stride, 0.0f);
             }
         }
 
@@ -485,9 +506,10 @@ struct Reconstructor::Impl {
             for (size_t j = 0; j < T.h; ++j)
                 for (size_t i = 0; i < T.w; ++i) {
                     const size_t q = T.offset + j * T.w + i;
-                    const float re = acc[2 * q], im = acc[2 * q + 1];
-                    float e = std::sqrt(re * re + im * im);
-                    if (das.coherence_factor) e *= coherenceFactor(re, im, acc_s2[q], acc_n[q]);
+                    const float re = acc[2 * q], im = acc[2 * q + 1], wsum = acc_w[q];
+                    // Weighted mean of the aligned echoes; no term reached this pixel: 0.
+                    float e = wsum > 1e-20f ? std::sqrt(re * re + im * im) / wsum : 0.0f;
+                    if (das.coherence_factor) e *= coherenceFactor(re, im, acc_s2[q], wsum);
                     f.envelope[(T.iz0 + j) * nx + T.ix0 + i] = e;
                 }
         const double t_env = since(t0);

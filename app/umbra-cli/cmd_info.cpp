@@ -135,6 +135,9 @@ int cmdValidate(const Argv& argv) {
     const std::string path = a.positional()[0];
     auto problems = checkCaptureIsolated(path, true);
     if (problems.empty()) {
+        // Warnings do not make the file invalid; the header is known to be readable here.
+        for (auto& w : core::headerWarnings(core::CaptureReader(path).header()))
+            std::fprintf(stderr, "%s: warning: %s: %s\n", path.c_str(), w.where.c_str(), w.what.c_str());
         if (!a.has("--quiet")) std::printf("%s: valid capture (format v1)\n", path.c_str());
         return 0;
     }
@@ -204,6 +207,9 @@ int cmdInfo(const Argv& argv) {
     else
         j["wedge"] = nullptr;
     if (!h.provenance.empty()) j["provenance"] = h.provenance;
+    const auto warnings = core::headerWarnings(h);
+    j["warnings"] = nlohmann::ordered_json::array();
+    for (auto& w : warnings) j["warnings"].push_back(w.where + ": " + w.what);
 
     if (a.has("--json")) {
         std::printf("%s\n", j.dump(2).c_str());
@@ -238,6 +244,7 @@ int cmdInfo(const Argv& argv) {
     else
         o << "none (array on the surface)\n";
     for (auto& [k, v] : h.provenance) o << "Provenance   " << k << ": " << v << "\n";
+    for (auto& w : warnings) o << "Warning      " << w.where << ": " << w.what << "\n";
     std::fputs(o.str().c_str(), stdout);
     return 0;
 }
