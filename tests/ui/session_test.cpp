@@ -3,7 +3,7 @@
 // (one point reflector at 10 mm depth): undo after switching captures, a refused recipe value
 // leaves panel, recipe and image in agreement, a cancelled top-view run leaves no progress
 // behind and can be finished, the zoom survives a re-beamform, and a drawing tool drags an
-// existing handle instead of drawing over it. These check the workstation's own behaviour
+// existing handle instead of drawing over it; the gain curve is edited as a table. These check the workstation's own behaviour
 // (the documented contract of undo, the recipe panel and the view), not an outside value.
 #include <gtest/gtest.h>
 
@@ -12,6 +12,7 @@
 #include <QLabel>
 #include <QMouseEvent>
 #include <QProgressBar>
+#include <QTableWidget>
 #include <QPushButton>
 #include <QToolButton>
 #include <QUndoStack>
@@ -21,6 +22,7 @@
 #include "core/measurement.h"
 #include "ui/controller/case_controller.h"
 #include "ui/main/main_window.h"
+#include "ui/recipe/gain_curve_editor.h"
 #include "ui/recipe/recipe_panel.h"
 #include "ui/viewer/image_view.h"
 #include "ui_test_support.h"
@@ -278,4 +280,50 @@ TEST(session_test, drawing_tool_drags_an_existing_handle) {
     v->setTool(ui::Tool::Caliper);
     drag(v, vt.toPixel(QPointF(-1.5, 5.0)), vt.toPixel(QPointF(1.5, 6.0)));
     EXPECT_EQ(ctl->measurements().size(), 2u);
+}
+
+// The TCG gain curve is edited as a table of (depth mm, gain dB) points; the recipe stores the
+// text form. A curve whose depths do not increase is refused and the table shows the curve in use.
+// Expected gains: linear interpolation between the points, held beyond (the stage's declared rule).
+TEST(session_test, gain_curve_is_edited_as_a_table_of_points) {
+    const QString dir = ui::test::tempDir();
+    const QString a = makeCapture(dir, "a.h5", 1);
+    MainWindow w(quiet());
+    auto* ctl = w.controller();
+    ASSERT_TRUE(w.openPath(a));
+    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    auto* editor = qobject_cast<ui::GainCurveEditor*>(w.recipePanel()->editorFor("tgc.curve"));
+    ASSERT_NE(editor, nullptr);
+    QTableWidget* t = editor->table();
+    ASSERT_EQ(t->rowCount(), 1);  // the default "0:0"
+    ctl->editRecipeValue("tgc.mode", "curve");
+
+    for (auto* b : editor->findChildren<QPushButton*>())
+        if (b->text() == "Add point") b->click();
+    ASSERT_EQ(t->rowCount(), 2);
+    EXPECT_EQ(ctl->recipe().text("tgc.curve"), "0:0,5:0");
+    t->item(1, 1)->setText("12");  // 12 dB at 5 mm
+    EXPECT_EQ(ctl->recipe().text("tgc.curve"), "0:0,5:12");
+    // Gain 12 dB x z / 5 mm between 1 and 4 mm, held at 12 dB between 8 and 12 mm: checked on the
+    // TCG-corrected amplitude relative to the envelope.
+    const auto* f = ctl->envelope();
+    const auto& amp = ctl->tgcAmplitude();
+    ASSERT_EQ(amp.size(), f->nx() * f->nz());
+    int checked = 0;
+    for (size_t iz = 0; iz < f->nz(); ++iz) {
+        const double z_mm = f->z_m[iz] * 1e3;
+        if ((z_mm < 1.0 || z_mm > 4.0) && (z_mm < 8.0 || z_mm > 12.0)) continue;
+        const size_t ix = f->nx() / 2;
+        const double e = f->envelope[iz * f->nx() + ix];
+        if (!(e > 0)) continue;
+        const double gain_db = 20 * std::log10(amp[iz * f->nx() + ix] / e);
+        EXPECT_NEAR(gain_db, z_mm < 5 ? 12.0 * z_mm / 5.0 : 12.0, 1e-3) << "at " << z_mm << " mm";
+        ++checked;
+    }
+    EXPECT_GT(checked, 10);
+
+    // Depths that do not increase: refused, the table goes back to the curve in use.
+    t->item(1, 0)->setText("0");
+    EXPECT_EQ(ctl->recipe().text("tgc.curve"), "0:0,5:12");
+    EXPECT_EQ(editor->curve(), "0:0,5:12");
 }

@@ -69,6 +69,8 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     connect(ctl_, &CaseController::busyChanged, this, [this](bool busy) {
         if (busy) {
             progress_->setValue(0);
+            progress_label_->clear();
+            progress_label_->show();
             progress_->show();
             cancel_->show();
         } else if (!ctl_->isTopViewRunning()) {
@@ -78,7 +80,10 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     connect(ctl_, &CaseController::progressChanged, this, [this](double f, const QString& what) {
         progress_->setValue(static_cast<int>(std::lround(f * 100)));
         progress_->setToolTip(what);
-        progress_->setFormat(what + QStringLiteral("  %p%"));
+        // The description in its own label, cut to its width: it never runs over other text.
+        progress_label_->setText(progress_label_->fontMetrics().elidedText(what, Qt::ElideRight, progress_label_->maximumWidth()));
+        progress_label_->setToolTip(what);
+        progress_label_->show();
         progress_->show();
         cancel_->show();  // background frames for the top view can be stopped too
     });
@@ -365,9 +370,13 @@ void MainWindow::buildStatusBar() {
     timing_ = new QLabel;
     timing_->setToolTip(tr("Display: time to re-map the stored image (TCG, log compression, colour). "
                            "Beamform: wall time of the last delay-and-sum run."));
+    progress_label_ = new QLabel;
+    progress_label_->setMaximumWidth(300);
+    progress_label_->hide();
     progress_ = new QProgressBar;
-    progress_->setMaximumWidth(320);
+    progress_->setMaximumWidth(140);
     progress_->setRange(0, 100);
+    progress_->setFormat(QStringLiteral("%p%"));
     progress_->hide();
     cancel_ = new QToolButton;
     cancel_->setText(tr("Cancel"));
@@ -382,6 +391,7 @@ void MainWindow::buildStatusBar() {
     statusBar()->addWidget(readout_);
     statusBar()->addPermanentWidget(ref_warning_);  // permanent: temporary messages never cover it
     statusBar()->addPermanentWidget(timing_);
+    statusBar()->addPermanentWidget(progress_label_);
     statusBar()->addPermanentWidget(progress_);
     statusBar()->addPermanentWidget(cancel_);
 }
@@ -638,6 +648,7 @@ QString MainWindow::inCaseFolder(const QString& file_name) const {
 }
 
 void MainWindow::hideProgress() {
+    progress_label_->hide();
     progress_->hide();
     cancel_->hide();
 }

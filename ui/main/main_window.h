@@ -132,6 +132,7 @@ private:
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;
     QLabel* ref_warning_ = nullptr;  ///< amplitude reference: not comparable with the current recipe
+    QLabel* progress_label_ = nullptr;  ///< what is running (beside the bar, never inside it)
     QProgressBar* progress_ = nullptr;
     QToolButton* cancel_ = nullptr;
     QTimer* autosave_ = nullptr;

@@ -25,6 +25,7 @@
 
 #include "core/error.h"
 #include "ui/controller/case_controller.h"
+#include "ui/recipe/gain_curve_editor.h"
 
 namespace umbra::ui {
 
@@ -214,6 +215,12 @@ void RecipePanel::build() {
                     break;
                 }
                 case core::ParamKind::Text: {
+                    if (p.unit == "mm:dB") {  // a gain curve: a table of points, not the text form
+                        auto* g = new GainCurveEditor;
+                        connect(g, &GainCurveEditor::curveEdited, this, [this, key](const QString& t) { commit(key, t.toStdString()); });
+                        w = g;
+                        break;
+                    }
                     auto* e = new QLineEdit;
                     e->setPlaceholderText(tr("(default)"));
                     connect(e, &QLineEdit::editingFinished, this, [this, key, e] { commit(key, e->text().toStdString()); });
@@ -281,7 +288,10 @@ void RecipePanel::syncFromRecipe() {
                 break;
             }
             case core::ParamKind::Flag: static_cast<QCheckBox*>(w)->setChecked(r.flag(key)); break;
-            case core::ParamKind::Text: static_cast<QLineEdit*>(w)->setText(QString::fromStdString(r.text(key))); break;
+            case core::ParamKind::Text:
+                if (auto* g = qobject_cast<GainCurveEditor*>(w)) g->setCurve(QString::fromStdString(r.text(key)));
+                else static_cast<QLineEdit*>(w)->setText(QString::fromStdString(r.text(key)));
+                break;
         }
     }
     syncing_ = false;
