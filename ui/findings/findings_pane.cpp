@@ -106,6 +106,7 @@ LevelBox makeLevelBox(const QString& title, const QString& name) {
     b.fields->setObjectName(name + QStringLiteral("Fields"));
     b.form = new QFormLayout(b.fields);
     b.form->setContentsMargins(0, 0, 0, 0);
+    b.form->setRowWrapPolicy(QFormLayout::WrapLongRows);  // narrow dock: label above its field
     layout->addWidget(b.fields);
     return b;
 }
@@ -195,6 +196,7 @@ void FindingsPane::buildUi() {
     indication_box_ = new QGroupBox(tr("1  Indication: what is seen"));
     indication_box_->setObjectName(QStringLiteral("indicationGroup"));
     auto* inf = new QFormLayout(indication_box_);
+    inf->setRowWrapPolicy(QFormLayout::WrapLongRows);  // narrow dock: label above its field
     location_ = new QLineEdit;
     location_->setObjectName(QStringLiteral("location"));
     location_->setPlaceholderText(tr("e.g. frame 11 (y = 10.0 mm), x = 2.4 mm"));
