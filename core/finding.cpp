@@ -86,6 +86,15 @@ std::string Finding::evaluationLockReason() const {
            interpretationLabel(interpretation) + ").";
 }
 
+std::vector<std::string> hedgingWordsInReason(const std::string& text) {
+    static const std::vector<std::string> interpretive = {"consistent with", "compatible with", "suggestive of", "suggests",
+                                                          "suggesting"};
+    std::vector<std::string> out;
+    for (auto& w : hedgingWords(text))
+        if (std::find(interpretive.begin(), interpretive.end(), w) == interpretive.end()) out.push_back(w);
+    return out;
+}
+
 std::vector<std::string> hedgingWords(const std::string& text) {
     const std::string s = normalise(text);
     std::vector<std::pair<size_t, std::string>> hits;

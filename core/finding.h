@@ -65,6 +65,10 @@ struct Finding {
 /// "suggestive of", "consistent with", "appears to be", "presumably", "significant", ...
 /// Whole words only ("impossible" is not "possible").
 std::vector<std::string> hedgingWords(const std::string& text);
+/// Hedges in an interpretation's reason: as hedgingWords, except the phrases that state an
+/// interpretation and so belong in a reason ("consistent with", "compatible with", "suggestive
+/// of", "suggests", "suggesting").
+std::vector<std::string> hedgingWordsInReason(const std::string& text);
 /// A quiet note for the user, e.g. "Describe what is seen: 'possible' is a hedge." (empty if none).
 std::string hedgingNote(const std::vector<std::string>& words);
 

@@ -91,6 +91,7 @@ int main(int argc, char** argv) {
         umbra::core::Recipe r = ctl->recipe();
         try {
             for (const QString& a : sets) r.applyAssignment(a.toStdString());
+            ctl->checkRecipe(r);  // e.g. a grid over the pixel limit: refused before it applies
         } catch (const std::exception& e) {
             std::fprintf(stderr, "umbra: %s\n", e.what());
             return false;

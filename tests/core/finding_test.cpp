@@ -84,6 +84,15 @@ TEST(finding_test, plain_description_is_not_flagged) {
     EXPECT_TRUE(hedgingWords("Insignia; possiblex").empty());
 }
 
+// In an interpretation's reason, the phrases that state an interpretation ("consistent with",
+// "suggestive of") are its business; real hedges ("probably", "possible") are still flagged
+// (common practice of descriptive reporting, no single published source).
+TEST(finding_test, reason_hedges_leave_interpretive_phrases_alone) {
+    EXPECT_TRUE(hedgingWordsInReason("Consistent with lack of fusion: echo from both sides, suggestive of a planar face.").empty());
+    EXPECT_EQ(hedgingWordsInReason("Probably lack of fusion, consistent with the bevel angle; possible slag."),
+              (std::vector<std::string>{"probably", "possible"}));
+}
+
 TEST(finding_test, hedging_note_names_the_words) {
     EXPECT_EQ(hedgingNote({"possible"}), "Describe what is seen: 'possible' is a hedge.");
     EXPECT_EQ(hedgingNote({"possible", "likely"}), "Describe what is seen: 'possible' and 'likely' are hedges.");

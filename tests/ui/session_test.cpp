@@ -7,6 +7,7 @@
 // (the documented contract of undo, the recipe panel and the view), not an outside value.
 #include <gtest/gtest.h>
 
+#include <QAction>
 #include <QApplication>
 #include <QDoubleSpinBox>
 #include <QLabel>
@@ -21,6 +22,7 @@
 
 #include "core/measurement.h"
 #include "ui/controller/case_controller.h"
+#include "ui/findings/findings_pane.h"
 #include "ui/main/main_window.h"
 #include "ui/recipe/gain_curve_editor.h"
 #include "ui/recipe/recipe_panel.h"
@@ -34,13 +36,7 @@ using umbra::ui::test::waitUntil;
 
 namespace {
 
-MainWindow::Options quiet() {
-    MainWindow::Options o;
-    o.interactive = false;
-    o.recovery = MainWindow::Recovery::Ignore;
-    o.autosave_seconds = 3600;
-    return o;
-}
+MainWindow::Options quiet() { return ui::test::quietOptions(); }
 
 QString makeCapture(const QString& dir, const char* name, size_t frames, size_t elements = 8) {
     const QString p = dir + "/" + name;
@@ -49,6 +45,13 @@ QString makeCapture(const QString& dir, const char* name, size_t frames, size_t 
 }
 
 bool idle(const CaseController* ctl) { return ctl->hasImage() && !ctl->isBusy() && !ctl->isTopViewRunning(); }
+
+/// Writes a point capture of `frames` frames into a fresh folder, opens it in `w` and waits
+/// until nothing is running.
+bool openNew(MainWindow& w, size_t frames = 1) {
+    const QString a = makeCapture(ui::test::tempDir(), "a.h5", frames);
+    return w.openPath(a) && waitUntil([&] { return idle(w.controller()); });
+}
 
 core::Measurement caliper(double x0, double z0, double x1, double z1) {
     core::Measurement m;
@@ -120,12 +123,9 @@ TEST(session_test, undo_history_survives_switching_captures) {
 // in the recipe panel: the recipe, the field and the image all keep the old step, and a note
 // says why. A step with more decimals than the spin-box step (0.013 mm) is kept as typed.
 TEST(session_test, refused_recipe_value_leaves_panel_recipe_and_image_in_agreement) {
-    const QString dir = ui::test::tempDir();
-    const QString a = makeCapture(dir, "a.h5", 1);
     MainWindow w(quiet());
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(a));
-    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    ASSERT_TRUE(openNew(w));
     // A wide region: 400 mm x 100 mm at 0.02 mm is 100 Mpx, over the 16 Mpx limit.
     for (const auto& [k, v] : {std::pair{"grid.step_mm", "0.5"}, {"grid.x_min_mm", "-200"}, {"grid.x_max_mm", "200"},
                                {"grid.z_max_mm", "100"}, {"grid.z_min_mm", "1"}})
@@ -164,13 +164,10 @@ TEST(session_test, refused_recipe_value_leaves_panel_recipe_and_image_in_agreeme
 // Stopping the background run of the top view hides the progress (no bar left at its last
 // percentage) and offers to finish the missing frames, which then completes the top view.
 TEST(session_test, cancelled_top_view_leaves_no_progress_and_can_be_finished) {
-    const QString dir = ui::test::tempDir();
-    const QString a = makeCapture(dir, "scan.h5", 21);
     MainWindow w(quiet());
     w.show();
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(a));
-    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    ASSERT_TRUE(openNew(w, 21));
     // A fine grid so each frame takes a moment and the run is still going when it is stopped.
     ctl->editRecipeValue("grid.step_mm", "0.01");
     // Stop on the first progress report of a background (top view) frame.
@@ -210,13 +207,10 @@ TEST(session_test, cancelled_top_view_leaves_no_progress_and_can_be_finished) {
 // A re-beamform with another pixel step replaces the image (its extent moves by part of a
 // pixel) but keeps the zoom (pixels per mm) and the centre the user chose.
 TEST(session_test, zoom_and_centre_survive_a_rebeamform) {
-    const QString dir = ui::test::tempDir();
-    const QString a = makeCapture(dir, "a.h5", 1);
     MainWindow w(quiet());
     w.show();
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(a));
-    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    ASSERT_TRUE(openNew(w));
     ui::ImageView* v = w.imageView();
     QApplication::processEvents();
     v->zoomBy(3.0);
@@ -251,14 +245,11 @@ TEST(session_test, zoom_and_centre_survive_a_rebeamform) {
 // With a drawing tool active, pressing on a handle of an existing measurement drags that handle
 // (one measurement, moved) instead of starting a new measurement there.
 TEST(session_test, drawing_tool_drags_an_existing_handle) {
-    const QString dir = ui::test::tempDir();
-    const QString a = makeCapture(dir, "a.h5", 1);
     MainWindow w(quiet());
     w.resize(1400, 900);
     w.show();
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(a));
-    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    ASSERT_TRUE(openNew(w));
     ui::ImageView* v = w.imageView();
     QApplication::processEvents();
     const auto& vt = v->transform();
@@ -286,12 +277,9 @@ TEST(session_test, drawing_tool_drags_an_existing_handle) {
 // text form. A curve whose depths do not increase is refused and the table shows the curve in use.
 // Expected gains: linear interpolation between the points, held beyond (the stage's declared rule).
 TEST(session_test, gain_curve_is_edited_as_a_table_of_points) {
-    const QString dir = ui::test::tempDir();
-    const QString a = makeCapture(dir, "a.h5", 1);
     MainWindow w(quiet());
     auto* ctl = w.controller();
-    ASSERT_TRUE(w.openPath(a));
-    ASSERT_TRUE(waitUntil([&] { return idle(ctl); }));
+    ASSERT_TRUE(openNew(w));
     auto* editor = qobject_cast<ui::GainCurveEditor*>(w.recipePanel()->editorFor("tgc.curve"));
     ASSERT_NE(editor, nullptr);
     QTableWidget* t = editor->table();
@@ -326,4 +314,23 @@ TEST(session_test, gain_curve_is_edited_as_a_table_of_points) {
     t->item(1, 0)->setText("0");
     EXPECT_EQ(ctl->recipe().text("tgc.curve"), "0:0,5:12");
     EXPECT_EQ(editor->curve(), "0:0,5:12");
+}
+
+// Ctrl+F (Add finding from the selected measurement) selects the new finding in the findings
+// pane, so the user can describe it at once.
+TEST(session_test, add_finding_selects_the_new_finding) {
+    MainWindow w(quiet());
+    auto* ctl = w.controller();
+    ASSERT_TRUE(openNew(w));
+    const std::string id = ctl->addMeasurement(caliper(-1, 9, 1, 11));
+    ctl->setSelectedMeasurement(QString::fromStdString(id));
+    QAction* add = nullptr;
+    for (auto* act : w.findChildren<QAction*>())
+        if (act->shortcut() == QKeySequence(Qt::CTRL | Qt::Key_F)) add = act;
+    ASSERT_NE(add, nullptr);
+    add->trigger();
+    ASSERT_EQ(ctl->findings().size(), 1u);
+    auto* pane = w.findChild<ui::FindingsPane*>();
+    ASSERT_NE(pane, nullptr);
+    EXPECT_EQ(pane->selectedFindingId().toStdString(), ctl->findings()[0].id);
 }

@@ -78,4 +78,12 @@ QString tempDir() {
     return dirs.back()->path();
 }
 
+MainWindowOptions quietOptions() {
+    MainWindowOptions o;
+    o.interactive = false;
+    o.recovery = Recovery::Ignore;
+    o.autosave_seconds = 3600;
+    return o;
+}
+
 }  // namespace umbra::ui::test

@@ -4,6 +4,8 @@
 // (independent of the demo samples) and a way to wait for the controller's worker.
 #include <QString>
 
+#include "ui/main/main_window.h"
+
 #include <functional>
 #include <string>
 
@@ -19,5 +21,8 @@ bool waitUntil(const std::function<bool()>& done, int timeout_ms = 20000);
 
 /// A fresh temporary folder for one test (removed at process exit).
 QString tempDir();
+
+/// Main-window options for tests: no dialogs (errors to stderr), auto-saves ignored, no timer.
+MainWindowOptions quietOptions();
 
 }  // namespace umbra::ui::test

@@ -606,9 +606,15 @@ void FindingsPane::updateLocks() {
 
 void FindingsPane::updateHedgeNote() {
     const core::Finding* f = current();
-    // Hedges weaken the description and the interpretation's reason alike.
-    const std::string note =
-        f ? core::hedgingNote(core::hedgingWords(f->indication.description + "\n" + f->interpretation_reason)) : std::string();
+    // Hedges weaken the description and the interpretation's reason alike (the reason may say
+    // what the indication is "consistent with": that is its job).
+    std::vector<std::string> words;
+    if (f) {
+        words = core::hedgingWords(f->indication.description);
+        for (const auto& w : core::hedgingWordsInReason(f->interpretation_reason))
+            if (std::find(words.begin(), words.end(), w) == words.end()) words.push_back(w);
+    }
+    const std::string note = core::hedgingNote(words);
     hedge_note_->setText(q(note));
     hedge_note_->setVisible(!note.empty());
 }
