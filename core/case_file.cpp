@@ -15,6 +15,7 @@
 
 #include "core/capture_file.h"
 #include "core/error.h"
+#include "core/json_guard.h"
 
 namespace umbra::core {
 namespace {
@@ -246,6 +247,73 @@ Finding readFinding(const Reader& r, const json& j, const std::string& path) {
     return f;
 }
 
+std::string readRecipe(const Reader& r, const json& obj, const std::string& path) {
+    if (!obj.contains("recipe") || obj["recipe"].is_null()) return {};
+    if (!obj["recipe"].is_object()) r.fail(Reader::key(path, "recipe"), "must be a JSON object or null");
+    return obj["recipe"].dump(2);
+}
+
+std::string readSha(const Reader& r, const json& obj, const std::string& path, const std::string& k) {
+    const std::string h = r.text(obj, path, k);
+    if (!h.empty() && (h.size() != 64 || h.find_first_not_of("0123456789abcdef") != std::string::npos))
+        r.fail(Reader::key(path, k), "must be 64 lowercase hexadecimal digits (or empty)");
+    return h;
+}
+
+double readAmplitude(const Reader& r, const json& obj, const std::string& path) {
+    const double a = r.numberValue(r.required(obj, path, "amplitude"), Reader::key(path, "amplitude"));
+    if (!(a > 0)) r.fail(Reader::key(path, "amplitude"), "must be positive");
+    return a;
+}
+
+DistanceAmplitudeCurve readCurve(const Reader& r, const json& j, const std::string& path) {
+    r.object(j, path);
+    DistanceAmplitudeCurve c;
+    c.label = r.text(j, path, "label");
+    const std::string basis = r.text(j, path, "amplitude_basis");
+    if (!basis.empty()) {
+        auto b = basisFromName(basis);
+        if (!b) r.fail(Reader::key(path, "amplitude_basis"), "unknown amplitude basis \"" + basis + "\" (before TCG, after TCG)");
+        c.basis = *b;
+    }
+    c.recipe_json = readRecipe(r, j, path);
+    c.recipe_fingerprint = r.text(j, path, "recipe_fingerprint");
+    const std::string pp = Reader::key(path, "points");
+    const json* pts = r.array(j, path, "points", true);
+    for (size_t i = 0; i < pts->size(); ++i) {
+        const std::string p = Reader::index(pp, i);
+        const json& pj = r.object((*pts)[i], p);
+        DacPoint d;
+        d.depth_m = r.numberValue(r.required(pj, p, "depth_m"), Reader::key(p, "depth_m"));
+        d.x_m = r.number(pj, p, "x_m", 0.0);
+        d.amplitude = readAmplitude(r, pj, p);
+        d.label = r.text(pj, p, "label");
+        d.capture_sha256 = readSha(r, pj, p, "capture_sha256");
+        d.frame = r.count(pj, p, "frame");
+        c = withPoint(std::move(c), d);  // kept in depth order whatever the file's order
+    }
+    return c;
+}
+
+// The single amplitude reference of earlier files: a one-point curve whose amplitude was read
+// after the TCG of its recipe.
+DistanceAmplitudeCurve readLegacyReference(const Reader& r, const json& j, const std::string& path) {
+    r.object(j, path);
+    DistanceAmplitudeCurve c;
+    c.label = r.text(j, path, "label");
+    c.basis = AmplitudeBasis::AfterTcg;
+    c.recipe_json = readRecipe(r, j, path);
+    DacPoint d;
+    d.amplitude = readAmplitude(r, j, path);
+    d.label = c.label;
+    d.capture_sha256 = r.text(j, path, "capture_sha256");
+    d.frame = r.count(j, path, "frame");
+    d.x_m = r.number(j, path, "x_mm", 0.0) * 1e-3;
+    d.depth_m = r.number(j, path, "z_mm", 0.0) * 1e-3;
+    c.points.push_back(d);
+    return c;
+}
+
 std::string resolvedPath(const std::string& stored, const std::string& base_dir) {
     if (stored.empty() || base_dir.empty()) return stored;
     const fs::path p(stored);
@@ -305,20 +373,26 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
     json fs_ = json::array();
     for (const auto& f : doc.findings) fs_.push_back(findingJson(f));
     j["findings"] = fs_;
-    if (const auto& a = doc.amplitude_reference) {
-        json aj = json::object();
-        aj["label"] = a->label;
-        aj["amplitude"] = a->amplitude;
-        aj["capture_sha256"] = a->capture_sha256;
+    if (const auto& c = doc.curve) {
+        json cj = json::object();
+        cj["label"] = c->label;
+        cj["amplitude_basis"] = basisName(c->basis);
         try {
-            aj["recipe"] = a->recipe_json.empty() ? json(nullptr) : json::parse(a->recipe_json);
+            cj["recipe"] = c->recipe_json.empty() ? json(nullptr) : json::parse(c->recipe_json);
         } catch (const json::exception& e) {
-            throw SettingError(std::string("amplitude reference: its recipe is not valid JSON: ") + e.what());
+            throw SettingError(std::string("distance–amplitude curve: its recipe is not valid JSON: ") + e.what());
         }
-        aj["frame"] = a->frame;
-        aj["x_mm"] = a->x_mm;
-        aj["z_mm"] = a->z_mm;
-        j["amplitude_reference"] = aj;
+        cj["recipe_fingerprint"] = c->recipe_fingerprint;
+        json pts = json::array();
+        for (const auto& p : c->points)
+            pts.push_back(json{{"depth_m", p.depth_m},
+                               {"x_m", p.x_m},
+                               {"amplitude", p.amplitude},
+                               {"label", p.label},
+                               {"capture_sha256", p.capture_sha256},
+                               {"frame", p.frame}});
+        cj["points"] = pts;
+        j["distance_amplitude_curve"] = cj;
     }
     // Invalid UTF-8 in a user text is replaced (U+FFFD) rather than failing the save.
     return j.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
@@ -326,6 +400,7 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
 
 CaseDocument caseFromJson(const std::string& text, const std::string& source, const std::string& base_dir) {
     Reader r(source);
+    checkJsonText(text, source);  // plain-words syntax errors, bounded depth and size, out-of-range numbers named
     json j;
     try {
         j = json::parse(text);
@@ -393,22 +468,11 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
     if (const json* fj = r.array(j, "", "findings"))
         for (size_t i = 0; i < fj->size(); ++i)
             doc.findings.push_back(readFinding(r, (*fj)[i], Reader::index("findings", i)));
-    if (j.contains("amplitude_reference") && !j["amplitude_reference"].is_null()) {
-        const std::string p = "amplitude_reference";
-        const json& aj = r.object(j[p], p);
-        AmplitudeReference a;
-        a.label = r.text(aj, p, "label");
-        a.amplitude = r.numberValue(r.required(aj, p, "amplitude"), Reader::key(p, "amplitude"));
-        if (!(a.amplitude > 0)) r.fail(Reader::key(p, "amplitude"), "must be positive");
-        a.capture_sha256 = r.text(aj, p, "capture_sha256");
-        if (aj.contains("recipe") && !aj["recipe"].is_null()) {
-            if (!aj["recipe"].is_object()) r.fail(Reader::key(p, "recipe"), "must be a JSON object or null");
-            a.recipe_json = aj["recipe"].dump(2);
-        }
-        a.frame = r.count(aj, p, "frame");
-        a.x_mm = r.number(aj, p, "x_mm", 0.0);
-        a.z_mm = r.number(aj, p, "z_mm", 0.0);
-        doc.amplitude_reference = a;
+    if (j.contains("distance_amplitude_curve") && !j["distance_amplitude_curve"].is_null()) {
+        doc.curve = readCurve(r, j["distance_amplitude_curve"], "distance_amplitude_curve");
+        if (doc.curve->points.empty()) doc.curve.reset();  // no points: no reference, as if absent
+    } else if (j.contains("amplitude_reference") && !j["amplitude_reference"].is_null()) {
+        doc.curve = readLegacyReference(r, j["amplitude_reference"], "amplitude_reference");
     }
     return doc;
 }

@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "core/distance_amplitude.h"
 #include "core/finding.h"
 #include "core/measurement.h"
 
@@ -35,20 +36,6 @@ struct CaseCapture {
     bool operator==(const CaseCapture&) const = default;
 };
 
-/// The amplitude reference of the case (0 dB): the echo of a known reflector, e.g. a side-drilled
-/// hole at a stated depth in a reference block, taken with a stated capture and recipe. Finding
-/// amplitudes and the reporting level are given in dB relative to `amplitude`.
-struct AmplitudeReference {
-    std::string label;          ///< what it is, e.g. "Ø2.5 mm SDH at 10 mm, reference block"
-    double amplitude = 0;       ///< linear envelope amplitude after TCG, capture units (> 0)
-    std::string capture_sha256; ///< of the capture it was taken on, lowercase hex
-    std::string recipe_json;    ///< the recipe it was taken with ({"stage": {"param": value}})
-    size_t frame = 0;           ///< frame of that capture
-    double x_mm = 0;            ///< where the peak was, mm
-    double z_mm = 0;            ///< depth of the peak, mm
-    bool operator==(const AmplitudeReference&) const = default;
-};
-
 struct CaseDocument {
     int version = kCaseVersion;
     std::string title;
@@ -59,7 +46,10 @@ struct CaseDocument {
     std::vector<CaseCapture> captures;
     size_t active_capture = 0;
     std::vector<Finding> findings;
-    std::optional<AmplitudeReference> amplitude_reference;  ///< unset: amplitudes re frame peak
+    /// The amplitude reference of the case: amplitudes in findings, the trace view and the
+    /// readout are given in dB re this curve at their depth. Unset: dB re the frame's peak.
+    /// (A file with the older single `amplitude_reference` loads as a one-point curve.)
+    std::optional<DistanceAmplitudeCurve> curve;
     bool operator==(const CaseDocument&) const = default;
 };
 

@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "core/json_guard.h"
 
 namespace umbra::core {
 namespace {
@@ -170,7 +171,10 @@ std::string Recipe::toJson(int indent) const {
 void Recipe::mergeJson(const std::string& text, const std::string& source) {
     nlohmann::json j;
     try {
+        checkJsonText(text, source);
         j = nlohmann::json::parse(text);
+    } catch (const InputError& e) {
+        throw SettingError(e.what());
     } catch (const std::exception& e) {
         throw SettingError(source + ": not valid JSON at " + plainParseMessage(e.what()));
     }

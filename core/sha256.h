@@ -6,10 +6,14 @@
 
 namespace umbra::core {
 
-/// Incremental SHA-256 (FIPS 180-4).
+/// Incremental SHA-256 (FIPS 180-4), computed by OpenSSL's libcrypto (which uses the CPU's SHA
+/// extensions where present).
 class Sha256 {
 public:
     Sha256();
+    ~Sha256();
+    Sha256(const Sha256&) = delete;
+    Sha256& operator=(const Sha256&) = delete;
     /// Adds `n` bytes. Throws std::logic_error after digest() (the hash is finished).
     void update(const void* data, size_t n);
     /// The 32-byte digest of everything added so far; finishes the hash. Calling it again
@@ -19,12 +23,7 @@ public:
     std::string hexDigest();
 
 private:
-    void block(const uint8_t* p);
-    void append(const uint8_t* p, size_t n);
-    uint32_t h_[8];
-    uint8_t buf_[64];
-    size_t buf_len_ = 0;
-    uint64_t total_ = 0;
+    void* ctx_ = nullptr;  // EVP_MD_CTX
     bool finished_ = false;
     std::array<uint8_t, 32> digest_{};
 };

@@ -1,11 +1,14 @@
 // SPDX-License-Identifier: MIT
 // PNG export of one frame: the colour-mapped image with mm axes, a title line and a colour bar.
 #include <opencv2/core.hpp>
-#include <opencv2/imgcodecs.hpp>
 #include <opencv2/imgproc.hpp>
+#include <png.h>
 
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
+#include <memory>
+#include <vector>
 
 #include "core/error.h"
 #include "reconstruction/pipeline.h"
@@ -26,6 +29,53 @@ std::string num(double v) {
     if (std::fabs(v) < 1e-9) v = 0;
     std::snprintf(b, sizeof b, "%g", v);
     return b;
+}
+
+// Writes an 8-bit BGR image as an RGB PNG through libpng, atomically (PATH.partial, then rename).
+void encodePng(const std::string& path, const cv::Mat& bgr) {
+    const std::string tmp = path + ".partial";
+    std::FILE* fp = std::fopen(tmp.c_str(), "wb");
+    if (!fp) throw core::InputError(path, "", "cannot write the PNG (cannot create the file)");
+    std::unique_ptr<std::FILE, int (*)(std::FILE*)> file(fp, std::fclose);
+    png_structp png = png_create_write_struct(PNG_LIBPNG_VER_STRING, nullptr, nullptr, nullptr);
+    png_infop info = png ? png_create_info_struct(png) : nullptr;
+    if (!png || !info) {
+        png_destroy_write_struct(&png, &info);
+        throw core::InputError(path, "", "cannot write the PNG (out of memory)");
+    }
+    std::vector<uint8_t> row(size_t(bgr.cols) * 3);
+    volatile bool ok = false;  // set after the last libpng call that may jump back
+    if (setjmp(png_jmpbuf(png)) == 0) {
+        png_init_io(png, fp);
+        png_set_IHDR(png, info, png_uint_32(bgr.cols), png_uint_32(bgr.rows), 8, PNG_COLOR_TYPE_RGB, PNG_INTERLACE_NONE,
+                     PNG_COMPRESSION_TYPE_DEFAULT, PNG_FILTER_TYPE_DEFAULT);
+        png_set_compression_level(png, 3);
+        png_write_info(png, info);
+        for (int y = 0; y < bgr.rows; ++y) {
+            const auto* p = bgr.ptr<cv::Vec3b>(y);
+            for (int x = 0; x < bgr.cols; ++x) {
+                row[size_t(x) * 3] = p[x][2];
+                row[size_t(x) * 3 + 1] = p[x][1];
+                row[size_t(x) * 3 + 2] = p[x][0];
+            }
+            png_write_row(png, row.data());
+        }
+        png_write_end(png, info);
+        ok = true;
+    }
+    png_destroy_write_struct(&png, &info);
+    const bool flushed = std::fflush(file.get()) == 0 && !std::ferror(file.get());
+    file.reset();
+    std::error_code ec;
+    if (!ok || !flushed) {
+        std::filesystem::remove(tmp, ec);
+        throw core::InputError(path, "", "cannot write the PNG (write failed)");
+    }
+    std::filesystem::rename(tmp, path, ec);
+    if (ec) {
+        std::filesystem::remove(tmp, ec);
+        throw core::InputError(path, "", "cannot write the PNG (cannot rename the temporary file)");
+    }
 }
 
 }  // namespace
@@ -104,13 +154,7 @@ void writePng(const std::string& path, const core::Frame& f, const core::Recipe&
     }
     cv::putText(canvas, "dB", cv::Point(bx, top - 6), font, fsz, ink, 1, cv::LINE_AA);
 
-    bool ok = false;
-    try {
-        ok = cv::imwrite(path, canvas);
-    } catch (const cv::Exception& e) {
-        throw core::InputError(path, "", std::string("cannot write the PNG: ") + e.what());
-    }
-    if (!ok) throw core::InputError(path, "", "cannot write the PNG");
+    encodePng(path, canvas);
 }
 
 }  // namespace umbra::recon

@@ -7,6 +7,7 @@
 #include <chrono>
 #include <cmath>
 #include <filesystem>
+#include <future>
 #include <map>
 #include <mutex>
 #include <numeric>
@@ -160,8 +161,19 @@ struct Reconstructor::Impl {
         std::vector<Pair> pairs;
     };
     std::vector<Worker> workers;
+    // SHA-256 of the capture file, started when the Reconstructor is made and computed on its
+    // own thread while the first frame is read and beamformed (the bytes come from the page
+    // cache the reader fills); collected when the first frame is finished.
+    std::shared_future<std::string> capture_hash;
 
     Impl(const core::CaptureReader& c, const core::Recipe& r, int nthreads) : cap(c), h(c.header()), recipe(r) {
+        capture_hash = std::async(std::launch::async, [path = c.path()] {
+                           try {
+                               return cachedSha256(path);
+                           } catch (const core::InputError&) {
+                               return std::string();
+                           }
+                       }).share();
         das = dasParams(recipe);
         model = makeDelayModel(h, recipe);
         grid = resolveGrid(h, recipe);
@@ -516,11 +528,7 @@ struct Reconstructor::Impl {
         f.recipe_json = recipe.toJson();
         f.frame_index = frame;
         t0 = Clock::now();
-        try {
-            f.capture_sha256 = cachedSha256(cap.path());
-        } catch (const core::InputError&) {
-            f.capture_sha256.clear();
-        }
+        f.capture_sha256 = capture_hash.get();  // waits only if hashing is slower than the frame
         const double t_hash = since(t0);
         if (progress.progress) progress.progress(1.0);
 
@@ -528,7 +536,7 @@ struct Reconstructor::Impl {
                                  {"band-pass + analytic signal", t_analytic},
                                  {"delay-and-sum", t_das},
                                  {"envelope", t_env},
-                                 {"capture hash", t_hash}};
+                                 {"capture hash (wait)", t_hash}};
         timings.total_seconds = since(t_start);
         timings.effective_terms = double(npix) * double(ntx) * double(nrx);
         for (auto& w : workers) timings.executed_terms += w.executed;

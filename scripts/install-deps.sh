@@ -7,7 +7,7 @@ PACKAGES=(
   build-essential cmake pkg-config git
   qt6-base-dev qt6-base-dev-tools libgl-dev fonts-dejavu-core
   libhdf5-dev libfftw3-dev libeigen3-dev nlohmann-json3-dev
-  libopencv-dev
+  libopencv-dev libpng-dev libssl-dev
   libgtest-dev libgmock-dev googletest libbenchmark-dev
   python3 python3-numpy python3-scipy python3-h5py
   xvfb xauth

@@ -4,7 +4,7 @@
 # (1480 x 920). Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
-# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export}.png.
+# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,dac}.png.
 # umbra writes each PNG under a temporary name and renames it; this script then checks that every
 # PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail
@@ -27,8 +27,8 @@ run() {
 weld_set=(--set grid.step_mm=0.08 --set grid.z_min_mm=0 --set grid.z_max_mm=24)
 
 # Weld coupon, frame 11 (y = 0 mm) where the fusion-face reflector is, a finer grid. With the
-# reference block present, the amplitude reference is first taken on its 10 mm side-drilled hole
-# (same --set values), then the demo annotation: -6 dB sizing and caliper on the flaw, finding F1.
+# reference block present, the distance-amplitude curve is first read from its four side-drilled
+# holes (same --set values), then the demo annotation: -6 dB sizing and caliper on the flaw, finding F1.
 ref=()
 [ -f "$samples/reference_block.h5" ] && ref=(--demo-reference)
 run --demo "$samples" --frame 10 "${weld_set[@]}" "${ref[@]}" --demo-annotate \
@@ -40,7 +40,11 @@ if [ -f "$samples/phantom_p2.h5" ]; then
 else
   echo "screenshots: $samples/phantom_p2.h5 missing; phantom screenshot skipped" >&2
 fi
-for f in "$out"/weld.png "$out"/weld-export.png "$out"/phantom.png; do
+# The reference block on its own: the curve from its four holes and the TCG made from it.
+if [ -f "$samples/reference_block.h5" ]; then
+  run "$samples/reference_block.h5" --demo-reference --demo-tcg --screenshot "$out/dac.png" --timeout 240
+fi
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/phantom.png "$out"/dac.png; do
   [ -f "$f" ] || continue
   /usr/bin/python3 - "$f" <<'PY'
 import struct, sys, zlib

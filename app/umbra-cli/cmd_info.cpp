@@ -1,10 +1,6 @@
 // SPDX-License-Identifier: MIT
-#include <poll.h>
-#include <sys/wait.h>
 #include <unistd.h>
 
-#include <cerrno>
-#include <csignal>
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
@@ -14,6 +10,7 @@
 #include "args.h"
 #include "commands.h"
 #include "core/capture_file.h"
+#include "core/isolated_check.h"
 
 namespace umbra::cli {
 namespace {
@@ -25,14 +22,6 @@ std::string fmt(double v, int prec = 3) {
     return os.str();
 }
 
-// Checks a capture in a child process. The HDF5 library itself can crash, or loop forever,
-// on some damaged files (corrupted object headers or heaps); run in a child, such a failure
-// becomes one reported problem and umbra-cli still exits 2. The child first opens and checks
-// the header, which takes milliseconds on a sound file, and reports that it got through; a
-// header that does not get through within headerSeconds() is given up on. With `full` the
-// child then reads every trace (as validate does), which has no time limit since large
-// captures legitimately take long. Falls back to an in-process check if fork() fails.
-// The header deadline is 30 s, or UMBRA_HEADER_TIMEOUT_S seconds (1..3600) if set.
 int headerSeconds() {
     if (const char* e = std::getenv("UMBRA_HEADER_TIMEOUT_S")) {
         int v = std::atoi(e);
@@ -44,81 +33,7 @@ int headerSeconds() {
 }  // namespace
 
 std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full) {
-    auto header = [&]() -> std::vector<core::Problem> {
-        try {
-            core::CaptureReader r(path);
-            return {};
-        } catch (const core::InputError& e) {
-            return e.problems();
-        } catch (const std::exception& e) {
-            return {{"", e.what()}};
-        }
-    };
-    int fds[2];
-    if (pipe(fds) != 0) return full ? core::CaptureReader::validate(path) : header();
-    std::fflush(nullptr);
-    const pid_t pid = fork();
-    if (pid < 0) {
-        close(fds[0]);
-        close(fds[1]);
-        return full ? core::CaptureReader::validate(path) : header();
-    }
-    if (pid == 0) {
-        close(fds[0]);
-        auto send = [&](const std::string& out) {
-            size_t done = 0;
-            while (done < out.size()) {
-                ssize_t n = write(fds[1], out.data() + done, out.size() - done);
-                if (n < 0 && errno == EINTR) continue;
-                if (n <= 0) _exit(3);
-                done += size_t(n);
-            }
-        };
-        auto problems = header();
-        send("H");  // the header was read (well or badly) in time
-        if (problems.empty() && full) problems = core::CaptureReader::validate(path);
-        nlohmann::json j = nlohmann::json::array();
-        for (auto& p : problems) j.push_back({p.where, p.what});
-        send(j.dump(-1, ' ', false, nlohmann::json::error_handler_t::replace));
-        close(fds[1]);
-        _exit(0);
-    }
-    close(fds[1]);
-    std::string buf;
-    char tmp[4096];
-    bool timed_out = false;
-    for (;;) {
-        if (buf.empty()) {  // still in the header phase: wait with a deadline
-            pollfd pfd{fds[0], POLLIN, 0};
-            int r = poll(&pfd, 1, headerSeconds() * 1000);
-            if (r < 0 && errno == EINTR) continue;
-            if (r == 0) {
-                timed_out = true;
-                kill(pid, SIGKILL);
-                break;
-            }
-        }
-        ssize_t n = read(fds[0], tmp, sizeof tmp);
-        if (n < 0 && errno == EINTR) continue;
-        if (n <= 0) break;
-        buf.append(tmp, size_t(n));
-    }
-    close(fds[0]);
-    int status = 0;
-    while (waitpid(pid, &status, 0) < 0 && errno == EINTR) {}
-    if (timed_out)
-        return {{"", "damaged HDF5 structure: reading the header did not finish within " + std::to_string(headerSeconds()) + " s"}};
-    if (WIFEXITED(status) && WEXITSTATUS(status) == 0 && buf.size() > 1 && buf[0] == 'H') {
-        try {
-            std::vector<core::Problem> problems;
-            for (auto& p : nlohmann::json::parse(buf.substr(1)))
-                problems.push_back({p.at(0).get<std::string>(), p.at(1).get<std::string>()});
-            return problems;
-        } catch (const std::exception&) {
-        }
-    }
-    std::string why = WIFSIGNALED(status) ? "signal " + std::to_string(WTERMSIG(status)) : "status " + std::to_string(WEXITSTATUS(status));
-    return {{"", "damaged HDF5 structure: reading it failed inside the HDF5 library (" + why + ")"}};
+    return core::checkCaptureIsolated(path, full, headerSeconds());
 }
 
 int cmdValidate(const Argv& argv) {
@@ -212,7 +127,7 @@ int cmdInfo(const Argv& argv) {
     for (auto& w : warnings) j["warnings"].push_back(w.where + ": " + w.what);
 
     if (a.has("--json")) {
-        std::printf("%s\n", j.dump(2).c_str());
+        std::printf("%s\n", j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace).c_str());
         return 0;
     }
     std::ostringstream o;

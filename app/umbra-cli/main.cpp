@@ -29,7 +29,7 @@ int main(int argc, char** argv) {
             n.resize(16, ' ');
             s += n + c.summary + "\n";
         }
-        s += "\n'umbra-cli COMMAND --help' describes each command.\n";
+        s += "\n'umbra-cli COMMAND --help' describes each command; 'umbra-cli --version' prints the version.\n";
         return s;
     };
     if (argc < 2) {
@@ -39,6 +39,10 @@ int main(int argc, char** argv) {
     std::string cmd = argv[1];
     if (cmd == "--help" || cmd == "-h" || cmd == "help") {
         std::fputs(usage().c_str(), stdout);
+        return 0;
+    }
+    if (cmd == "--version") {
+        std::printf("umbra-cli %s\n", UMBRA_VERSION);
         return 0;
     }
     Argv rest(argv + 2, argv + argc);

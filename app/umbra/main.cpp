@@ -6,7 +6,7 @@
 //                                         reference block) or phantom (Phantom P-2); File → Demo cases
 //                                         offers the other
 //   umbra ... --timings [--set stage.param=value ...]   print display re-render and beamforming times
-//   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference] [--capture N] [--export FILE]
+//   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference [--demo-tcg]] [--capture N] [--export FILE]
 #include <QApplication>
 #include <QCommandLineParser>
 #include <QFileInfo>
@@ -45,14 +45,15 @@ int main(int argc, char** argv) {
                                "and a finding from it.",
                                "X,Z,A,B");
     QCommandLineOption demoRef("demo-reference",
-                               "With --screenshot: first set the amplitude reference from the side-drilled hole at 10 mm "
-                               "of the case's reference_block.h5 capture.");
+                               "With --screenshot: first make the distance-amplitude curve from the side-drilled holes at "
+                               "5, 10, 15 and 20 mm of the case's reference_block.h5 capture (printed to stderr).");
+    QCommandLineOption demoTcg("demo-tcg", "With --demo-reference: also make the TCG of the reference block from the curve.");
     QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
     QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
+    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -161,12 +162,13 @@ int main(int argc, char** argv) {
             return 2;
         }
         const double limit_s = cl.value(timeout).toDouble();
+        const bool make_tcg = cl.isSet(demoTcg);
         auto* timer = new QTimer(&w);
         auto* elapsed = new double(0);
         auto* phase = new int(ref_capture >= 0 ? 0 : 2);  // 0 go to the block, 1 take the reference, 2 shoot
         const bool timed = opt.timings;
         QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings,
-                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell] {
+                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell, make_tcg] {
             *elapsed += 0.25;
             if (*phase == 0) {
                 ctl->setActiveCapture(static_cast<size_t>(ref_capture));
@@ -176,7 +178,12 @@ int main(int argc, char** argv) {
             }
             if (*phase == 1) {
                 if (!idle() && *elapsed < limit_s) return;
-                w.demoReference(10.0);
+                w.demoCurve();
+                if (make_tcg) {
+                    QString why;
+                    if (!ctl->makeTcgFromCurve(&why)) std::fprintf(stderr, "umbra: --demo-tcg: %s\n", why.toLocal8Bit().constData());
+                    else std::fprintf(stderr, "umbra: TCG from the curve: %s\n", ctl->recipe().text("tgc.curve").c_str());
+                }
                 ctl->setActiveCapture(cap < ctl->captureCount() ? cap : 0);
                 if (has_frame) ctl->setCurrentFrame(frame_index);
                 applySets();

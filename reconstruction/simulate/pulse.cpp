@@ -25,7 +25,7 @@ PulseTable::PulseTable(const GaussianPulse& p, double fs, int fractions) : m_(fr
 __attribute__((target_clones("avx2", "default")))
 int PulseTable::add(float* trace, int n, double delay_samples, float amplitude) const {
     const double fl = std::floor(delay_samples);
-    if (fl < -half_ - 1 || fl > n + half_) return 0;
+    if (!(fl >= -half_ - 1 && fl <= n + half_)) return 0;  // also refuses a NaN delay
     const long base = long(fl);                 // sample index of row element i = half
     const double fpos = (delay_samples - fl) * m_;
     int j = int(fpos);

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "core/json_guard.h"
 
 namespace umbra::recon::sim {
 
@@ -182,11 +183,57 @@ std::pair<double, double> FrameSpec::displacement(size_t f) const {
     return {velocity_x_m_s * t + oscillation_x_m * osc, velocity_z_m_s * t + oscillation_z_m * osc};
 }
 
+// Bounds on what the simulator will allocate and compute, checked before it starts: reflector
+// counts, the extent of the scene (a 10 km flaw would ask for gigabytes of points), the pulse
+// length (a 0.001 MHz pulse would need a huge table), and the cine motion (a huge interval or
+// velocity would move reflectors to infinity).
+void checkSceneBounds(const Scene& s, const std::string& source) {
+    auto fail = [&](const std::string& where, const std::string& what) { throw core::InputError(source, where, what); };
+    if (s.points.size() > kMaxScenePoints)
+        fail("reflectors.points", std::to_string(s.points.size()) + " points (limit " + std::to_string(kMaxScenePoints) + ")");
+    if (s.holes.size() > kMaxSceneHoles)
+        fail("reflectors.side_drilled_holes", std::to_string(s.holes.size()) + " holes (limit " + std::to_string(kMaxSceneHoles) + ")");
+    if (s.flaws.size() > kMaxSceneFlaws)
+        fail("reflectors.planar_flaws", std::to_string(s.flaws.size()) + " flaws (limit " + std::to_string(kMaxSceneFlaws) + ")");
+    auto inside = [&](double v) { return std::isfinite(v) && std::fabs(v) <= kMaxSceneExtentM; };
+    const std::string lim = " (limit " + Obj::fmt(kMaxSceneExtentM) + " m from the array)";
+    for (size_t i = 0; i < s.points.size(); ++i)
+        for (double v : s.points[i].position_m)
+            if (!inside(v)) fail("reflectors.points[" + std::to_string(i) + "].position_mm", "lies too far away" + lim);
+    for (size_t i = 0; i < s.holes.size(); ++i)
+        if (!inside(s.holes[i].x_m) || !inside(s.holes[i].z_m) || !inside(s.holes[i].diameter_m))
+            fail("reflectors.side_drilled_holes[" + std::to_string(i) + "]", "lies too far away or is too large" + lim);
+    const double lambda = s.medium.speed_m_s / s.array.centre_frequency_hz;
+    double flaw_points = 0;
+    for (size_t i = 0; i < s.flaws.size(); ++i) {
+        const auto& f = s.flaws[i];
+        if (!inside(f.x0_m) || !inside(f.z0_m) || !inside(f.x1_m) || !inside(f.z1_m))
+            fail("reflectors.planar_flaws[" + std::to_string(i) + "]", "lies too far away" + lim);
+        flaw_points += std::hypot(f.x1_m - f.x0_m, f.z1_m - f.z0_m) / (lambda / 4) + 2;
+    }
+    if (flaw_points > double(kMaxSceneFlawPoints))
+        fail("reflectors.planar_flaws", "the flaws would be modelled by " + Obj::fmt(flaw_points) + " points (limit " +
+                                            std::to_string(kMaxSceneFlawPoints) + "); make them shorter");
+    // The Gaussian pulse lasts 10 sigma (GaussianPulse::halfSupport).
+    const double sigma = std::sqrt(2 * std::log(2.0)) / (M_PI * s.array.fractional_bandwidth * s.array.centre_frequency_hz);
+    const double pulse_samples = 10 * sigma * s.sampling.frequency_hz;
+    if (!(pulse_samples <= kMaxPulseSamples))
+        fail("array.centre_frequency_mhz", "with this bandwidth and sampling the pulse would last " + Obj::fmt(pulse_samples) +
+                                               " samples (limit " + Obj::fmt(kMaxPulseSamples) + "): raise the frequency or bandwidth");
+    if (s.frames.kind == FrameKind::Cine)
+        for (size_t f : {size_t(0), s.frames.count > 0 ? s.frames.count - 1 : 0}) {
+            const auto [dx, dz] = s.frames.displacement(f);
+            if (!inside(dx) || !inside(dz) || !std::isfinite(s.frames.time(f)))
+                fail("frames", "the cine motion moves the scene too far by frame " + std::to_string(f) + lim);
+        }
+}
+
 Scene parseScene(const std::string& text, const std::string& source) {
+    core::checkJsonText(text, source);  // plain-words syntax errors, bounded depth and size, out-of-range numbers named
     json j;
     try {
         j = json::parse(text);
-    } catch (const json::parse_error& e) {
+    } catch (const json::exception& e) {
         throw core::InputError(source, "", std::string("not valid JSON: ") + e.what());
     }
     Scene s;
@@ -474,6 +521,7 @@ Scene parseScene(const std::string& text, const std::string& source) {
         if (k * double(ntx) * 12.0 > 4e9)
             throw core::InputError(source, "speckle.density_per_mm2", "scatterer tables for " + std::to_string(ntx) + " transmits would exceed 4 GB");
     }
+    checkSceneBounds(s, source);
     return s;
 }
 

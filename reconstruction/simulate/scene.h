@@ -158,6 +158,14 @@ struct Scene {
     OutputSpec output;
 };
 
+/// Limits a scene must keep (checked by parseScene before anything is simulated).
+inline constexpr size_t kMaxScenePoints = 100000;
+inline constexpr size_t kMaxSceneHoles = 10000;
+inline constexpr size_t kMaxSceneFlaws = 1000;
+inline constexpr size_t kMaxSceneFlawPoints = 2000000;  ///< points of all planar flaws together (lambda/4 apart)
+inline constexpr double kMaxSceneExtentM = 10.0;         ///< every reflector within 10 m of the array
+inline constexpr double kMaxPulseSamples = 100000;       ///< samples of the pulse table
+
 /// Parses and validates a scene from JSON text. `source` names the file in messages.
 /// Throws core::InputError(source, "key.path", problem) for malformed JSON, missing or
 /// unknown keys, wrong types, and values out of physical range.

@@ -291,6 +291,12 @@ SimStats simulateToFile(const Scene& s, const std::string& path, const SimOption
             rms = eng.noiseRms(buf.data());
         }
         eng.addNoise(f, buf.data(), rms);
+        // Refuse before writing: amplitudes so large that samples overflow would make a capture
+        // that the reader refuses.
+        for (size_t i = 0; i < fsz; ++i)
+            if (!std::isfinite(buf[i]))
+                throw core::InputError(s.source, "reflectors", "the amplitudes give non-finite samples in frame " + std::to_string(f) +
+                                                                   " (overflow); use amplitudes of a sensible size");
         if (f == 0) {
             if (s.output.sample_type == core::SampleType::Int16 && !s.output.scale) h.rf_scale = autoScale(buf.data(), fsz);
             w = std::make_unique<core::CaptureWriter>(path, h);

@@ -305,31 +305,45 @@ TEST(case_file_test, autosave_path_is_a_sibling) {
     EXPECT_EQ(autosavePath("/cases/w12"), "/cases/w12.umbracase.autosave");
 }
 
-// The amplitude reference (label, linear amplitude after TCG, capture hash, recipe, where it was
-// taken) survives save and load, byte for byte on a second save; a case without one stays without.
-TEST(case_file_test, amplitude_reference_round_trip) {
+// The distance–amplitude curve (label, basis, recipe, points with where they came from)
+// survives save and load; a second save is byte for byte the first; a case without one stays
+// without.
+TEST(case_file_test, distance_amplitude_curve_round_trip) {
     TempDir t;
     CaseDocument d = fullCase(t.path());
     EXPECT_FALSE(loadCase([&] { const fs::path f = t.path() / "none.umbracase"; saveCase(f.string(), d); return f.string(); }())
-                     .amplitude_reference.has_value());
-    AmplitudeReference a;
-    a.label = "Ø2.5 mm SDH at 10 mm, reference block";
-    a.amplitude = 0.0123456789012345;
-    a.capture_sha256 = std::string(64, 'c');
-    a.recipe_json = "{\n  \"das\": {\n    \"f_number\": 2.0\n  }\n}";
-    a.frame = 0;
-    a.x_mm = -1.25;
-    a.z_mm = 10.05;
-    d.amplitude_reference = a;
-    const fs::path file = t.path() / "ref.umbracase";
+                     .curve.has_value());
+    DistanceAmplitudeCurve c;
+    c.label = "Ø2.5 mm SDH, reference block RB-25";
+    c.recipe_json = "{\n  \"das\": {\n    \"f_number\": 2.0\n  }\n}";
+    c.recipe_fingerprint = "0123456789abcdef";
+    for (int i = 1; i <= 4; ++i) {
+        DacPoint p;
+        p.depth_m = 5e-3 * i;
+        p.x_m = -9e-3 + 6e-3 * (i - 1);
+        p.amplitude = 0.0123456789012345 / i;
+        p.label = "SDH " + std::to_string(5 * i) + " mm";
+        p.capture_sha256 = std::string(64, 'c');
+        c.points.push_back(p);
+    }
+    d.curve = c;
+    const fs::path file = t.path() / "dac.umbracase";
     saveCase(file.string(), d);
     const CaseDocument back = loadCase(file.string());
-    ASSERT_TRUE(back.amplitude_reference.has_value());
-    EXPECT_EQ(*back.amplitude_reference, a);
+    ASSERT_TRUE(back.curve.has_value());
+    EXPECT_EQ(back.curve->label, c.label);
+    EXPECT_EQ(back.curve->basis, AmplitudeBasis::BeforeTcg);
+    EXPECT_EQ(back.curve->recipe_json, c.recipe_json);
+    EXPECT_EQ(back.curve->recipe_fingerprint, c.recipe_fingerprint);
+    ASSERT_EQ(back.curve->points.size(), 4u);
+    for (size_t i = 0; i < 4; ++i) {
+        EXPECT_EQ(back.curve->points[i], c.points[i]);
+    }
     EXPECT_TRUE(back == d);
     EXPECT_EQ(caseToJson(back, t.path().string()), readFile(file));
+    EXPECT_EQ(readFile(file).find("amplitude_reference"), std::string::npos);  // the old key is not written
 
-    // A reference amplitude that is not positive is refused, naming the key.
+    // A point amplitude that is not positive is refused, naming the key.
     std::string text = readFile(file);
     const std::string from = "\"amplitude\": 0.0123456789012345";
     const size_t p = text.find(from);
@@ -339,6 +353,87 @@ TEST(case_file_test, amplitude_reference_round_trip) {
         loadCase(file.string());
         FAIL();
     } catch (const InputError& e) {
-        EXPECT_EQ(e.problems().at(0).where, "amplitude_reference.amplitude");
+        EXPECT_EQ(e.problems().at(0).where, "distance_amplitude_curve.points[0].amplitude");
     }
+}
+
+// A case written by another program from docs/case-file.md: only the required keys, points in
+// any order, a curve without a recipe. Loads, points sorted by depth.
+TEST(case_file_test, hand_written_curve_per_the_documentation_loads) {
+    const std::string text = R"({
+  "format": "umbracase", "version": 1, "captures": [],
+  "distance_amplitude_curve": {
+    "label": "SDH 2.5 mm",
+    "points": [
+      {"depth_m": 0.015, "amplitude": 2},
+      {"depth_m": 0.005, "amplitude": 8, "x_m": -0.006, "frame": 0},
+      {"depth_m": 0.025, "amplitude": 1, "label": "deepest"}
+    ]
+  }
+})";
+    const CaseDocument d = caseFromJson(text, "other.umbracase");
+    ASSERT_TRUE(d.curve.has_value());
+    EXPECT_EQ(d.curve->basis, AmplitudeBasis::BeforeTcg);
+    EXPECT_TRUE(d.curve->recipe_json.empty());
+    ASSERT_EQ(d.curve->points.size(), 3u);
+    EXPECT_DOUBLE_EQ(d.curve->points[0].depth_m, 5e-3);
+    EXPECT_DOUBLE_EQ(d.curve->points[0].x_m, -6e-3);
+    EXPECT_EQ(d.curve->points[2].label, "deepest");
+    // 20 log10(4 / curve at 10 mm): the curve is 20 log10 4 there (geometric mean of 8 and 2).
+    EXPECT_NEAR(dbReCurve(*d.curve, 4.0, 10e-3)->db, 0.0, 1e-9);
+
+    // No points: no curve (amplitudes re the frame peak).
+    EXPECT_FALSE(caseFromJson(R"({"format": "umbracase", "version": 1, "distance_amplitude_curve": {"points": []}})", "x")
+                     .curve.has_value());
+
+    // Errors name the key.
+    auto where = [](const std::string& t) {
+        try {
+            caseFromJson(t, "other.umbracase");
+        } catch (const InputError& e) {
+            return e.problems().at(0).where;
+        }
+        return std::string("(no error)");
+    };
+    const std::string head = R"({"format": "umbracase", "version": 1, "distance_amplitude_curve": )";
+    EXPECT_EQ(where(head + R"({"label": "x"}})"), "distance_amplitude_curve.points");
+    EXPECT_EQ(where(head + R"({"points": [{"amplitude": 1}]}})"), "distance_amplitude_curve.points[0].depth_m");
+    EXPECT_EQ(where(head + R"({"amplitude_basis": "raw", "points": []}})"), "distance_amplitude_curve.amplitude_basis");
+    EXPECT_EQ(where(head + R"({"points": [{"depth_m": 0.005, "amplitude": 1, "capture_sha256": "abc"}]}})"),
+              "distance_amplitude_curve.points[0].capture_sha256");
+}
+
+// Files from before the curve hold a single `amplitude_reference`: it opens as a one-point curve
+// whose amplitude was read after TCG (its recipe kept), and is saved back as a curve.
+TEST(case_file_test, old_single_amplitude_reference_opens_as_a_one_point_curve) {
+    TempDir t;
+    const std::string text = R"({
+  "format": "umbracase", "version": 1, "captures": [],
+  "amplitude_reference": {
+    "label": "Ø2.5 mm SDH at 10 mm, reference block",
+    "amplitude": 0.5,
+    "capture_sha256": "",
+    "recipe": {"das": {"f_number": 2.0}},
+    "frame": 0, "x_mm": -1.25, "z_mm": 10.0
+  }
+})";
+    const fs::path file = t.path() / "old.umbracase";
+    writeFile(file, text);
+    const CaseDocument d = loadCase(file.string());
+    ASSERT_TRUE(d.curve.has_value());
+    EXPECT_EQ(d.curve->label, "Ø2.5 mm SDH at 10 mm, reference block");
+    EXPECT_EQ(d.curve->basis, AmplitudeBasis::AfterTcg);
+    EXPECT_NE(d.curve->recipe_json.find("f_number"), std::string::npos);
+    ASSERT_EQ(d.curve->points.size(), 1u);
+    EXPECT_DOUBLE_EQ(d.curve->points[0].depth_m, 10e-3);
+    EXPECT_DOUBLE_EQ(d.curve->points[0].x_m, -1.25e-3);
+    EXPECT_EQ(d.curve->points[0].amplitude, 0.5);
+    // 0.25 re 0.5 is −6.02 dB at the reference's depth, and flagged elsewhere.
+    EXPECT_NEAR(dbReCurve(*d.curve, 0.25, 10e-3)->db, -6.020599913, 1e-9);
+    EXPECT_TRUE(dbReCurve(*d.curve, 0.25, 15e-3)->outside);
+    saveCase(file.string(), d);
+    const std::string again = readFile(file);
+    EXPECT_NE(again.find("\"distance_amplitude_curve\""), std::string::npos);
+    EXPECT_NE(again.find("\"after TCG\""), std::string::npos);
+    EXPECT_EQ(loadCase(file.string()).curve->basis, AmplitudeBasis::AfterTcg);
 }

@@ -6,6 +6,7 @@
 #include <QTemporaryDir>
 #include <QThread>
 
+#include <algorithm>
 #include <cmath>
 #include <memory>
 #include <vector>
@@ -15,7 +16,8 @@
 
 namespace umbra::ui::test {
 
-void writePointCapture(const std::string& path, size_t elements, size_t frames) {
+namespace {
+void writeCapture(const std::string& path, const std::vector<TestReflector>& reflectors, size_t elements, size_t frames) {
     core::CaptureHeader h;
     h.title = "UI test: one point reflector (synthetic)";
     h.created_utc = "2026-01-01T00:00:00Z";
@@ -38,11 +40,14 @@ void writePointCapture(const std::string& path, size_t elements, size_t frames) 
     h.provenance["generator"] = "ui tests (synthetic point echo)";
     h.frames = frames;
     h.samples = 512;  // 20.5 µs: 15.8 mm of depth at 1540 m/s
+    double deepest = 0;
+    for (const auto& r : reflectors) deepest = std::max(deepest, r.z_m);
+    h.samples = std::max<size_t>(h.samples, static_cast<size_t>(std::ceil(2 * (deepest + 3e-3) / c * fs)));
     h.sample_type = core::SampleType::Float32;
     h.rf_scale = 1.0;
     h.rf_units = "a.u.";
     core::CaptureWriter w(path, h);
-    const double zp = 10e-3, sigma = 0.6 / (2 * M_PI * f0 * 0.6 / 2.355);  // Gaussian pulse envelope
+    const double sigma = 0.6 / (2 * M_PI * f0 * 0.6 / 2.355);  // Gaussian pulse envelope
     std::vector<float> block(h.blockSize());
     for (size_t f = 0; f < frames; ++f)
         for (size_t t = 0; t < elements; ++t) {
@@ -51,15 +56,36 @@ void writePointCapture(const std::string& path, size_t elements, size_t frames) 
             const double amp = std::exp(-std::pow((static_cast<double>(f) - (static_cast<double>(frames) - 1) / 2) / 2.0, 2));
             for (size_t r = 0; r < elements; ++r) {
                 const auto& pr = h.array.element_position_m[r];
-                const double tau = (std::hypot(pt[0], zp) + std::hypot(pr[0], zp)) / c;
-                for (size_t k = 0; k < h.samples; ++k) {
-                    const double dt = static_cast<double>(k) / fs - tau;
-                    block[r * h.samples + k] = static_cast<float>(amp * std::exp(-dt * dt / (2 * sigma * sigma)) * std::cos(2 * M_PI * f0 * dt));
+                for (size_t k = 0; k < h.samples; ++k) block[r * h.samples + k] = 0;
+                for (const auto& p : reflectors) {
+                    const double tau = (std::hypot(pt[0] - p.x_m, p.z_m) + std::hypot(pr[0] - p.x_m, p.z_m)) / c;
+                    for (size_t k = 0; k < h.samples; ++k) {
+                        const double dt = static_cast<double>(k) / fs - tau;
+                        block[r * h.samples + k] += static_cast<float>(p.amplitude * amp * std::exp(-dt * dt / (2 * sigma * sigma)) *
+                                                                       std::cos(2 * M_PI * f0 * dt));
+                    }
                 }
             }
             w.writeBlock(f, t, block.data());
         }
     w.finish();
+}
+}  // namespace
+
+void writePointCapture(const std::string& path, size_t elements, size_t frames) {
+    writeCapture(path, {{0.0, 10e-3, 1.0}}, elements, frames);
+}
+
+void writeReflectorsCapture(const std::string& path, const std::vector<TestReflector>& reflectors, size_t elements) {
+    writeCapture(path, reflectors, elements, 1);
+}
+
+MainWindowOptions quietOptions() {
+    MainWindowOptions o;
+    o.interactive = false;
+    o.recovery = Recovery::Ignore;
+    o.autosave_seconds = 3600;
+    return o;
 }
 
 bool waitUntil(const std::function<bool()>& done, int timeout_ms) {
@@ -76,14 +102,6 @@ QString tempDir() {
     static std::vector<std::unique_ptr<QTemporaryDir>> dirs;
     dirs.push_back(std::make_unique<QTemporaryDir>());
     return dirs.back()->path();
-}
-
-MainWindowOptions quietOptions() {
-    MainWindowOptions o;
-    o.interactive = false;
-    o.recovery = Recovery::Ignore;
-    o.autosave_seconds = 3600;
-    return o;
 }
 
 }  // namespace umbra::ui::test

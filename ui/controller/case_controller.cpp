@@ -197,7 +197,7 @@ void CaseController::openActiveCapture() {
     if (reader_ && frame_ >= frameCount()) frame_ = 0;
     emit captureChanged();
     emit recipeChanged();
-    emit referenceChanged();
+    emit curveChanged();
     emit measurementsChanged();
     emit frameChanged(frame_);
     emit imageChanged();
@@ -705,9 +705,9 @@ void CaseController::editFindings(const std::vector<core::Finding>& fs, const QS
 
 // ---------------------------------------------------------------------------------- amplitude reference
 
-std::optional<CaseController::Peak> CaseController::peakIn(const core::Measurement& m) const {
-    if (!envelope_ || m.frame_index != frame_ || tgc_amp_.size() != envelope_->nx() * envelope_->nz() || m.points.empty())
-        return std::nullopt;
+template <class F>
+void CaseController::forEachPixelIn(const core::Measurement& m, F&& f) const {
+    if (!envelope_ || m.frame_index != frame_ || m.points.empty()) return;
     double x0 = 1e300, x1 = -1e300, z0 = 1e300, z1 = -1e300;
     for (const auto& p : m.points) {
         x0 = std::min(x0, p.x_mm), x1 = std::max(x1, p.x_mm);
@@ -723,17 +723,39 @@ std::optional<CaseController::Peak> CaseController::peakIn(const core::Measureme
     if (marker) z0 -= 0.5, z1 += 0.5;  // a depth marker: the band ±0.5 mm about its depth, all x
     const auto& xs = envelope_->x_m;
     const auto& zs = envelope_->z_m;
-    std::optional<Peak> best;
     for (size_t iz = 0; iz < zs.size(); ++iz) {
         const double z = zs[iz] * 1e3;
         if (z < z0 || z > z1) continue;
         for (size_t ix = 0; ix < xs.size(); ++ix) {
             const double x = xs[ix] * 1e3;
             if (!marker && (x < x0 || x > x1)) continue;
-            const double a = tgc_amp_[iz * xs.size() + ix];
-            if (a > 0 && (!best || a > best->amplitude)) best = Peak{a, x, z};
+            f(ix, iz);
         }
     }
+}
+
+std::optional<CaseController::Peak> CaseController::peakOf(const core::Measurement& m, const std::vector<float>& amp) const {
+    if (!envelope_ || amp.size() != envelope_->nx() * envelope_->nz()) return std::nullopt;
+    std::optional<Peak> best;
+    forEachPixelIn(m, [&](size_t ix, size_t iz) {
+        const double a = amp[iz * envelope_->nx() + ix];
+        if (a > 0 && (!best || a > best->amplitude)) best = Peak{a, envelope_->x_m[ix] * 1e3, envelope_->z_m[iz] * 1e3};
+    });
+    return best;
+}
+
+std::optional<CaseController::Peak> CaseController::peakIn(const core::Measurement& m) const { return peakOf(m, tgc_amp_); }
+
+std::optional<CaseController::Peak> CaseController::peakBeforeTcgIn(const core::Measurement& m) const {
+    return envelope_ ? peakOf(m, envelope_->envelope) : std::nullopt;
+}
+
+std::optional<CaseController::CurvePeak> CaseController::peakReCurveIn(const core::Measurement& m) const {
+    std::optional<CurvePeak> best;
+    forEachPixelIn(m, [&](size_t ix, size_t iz) {
+        const auto r = dbReCurveAt(ix, iz);
+        if (r && (!best || r->db > best->reading.db)) best = CurvePeak{*r, envelope_->x_m[ix] * 1e3, envelope_->z_m[iz] * 1e3};
+    });
     return best;
 }
 
@@ -752,78 +774,153 @@ std::vector<core::Quantity> CaseController::quantities(const core::Measurement& 
     return core::evaluate(m, uncertaintyModel());
 }
 
-bool CaseController::setAmplitudeReferenceFrom(const std::string& measurement_id, const QString& label, QString* why) {
+bool CaseController::addCurvePointFrom(const std::string& measurement_id, QString* why, const QString& curve_label) {
     const core::Measurement* m = measurement(measurement_id);
     auto fail = [&](const QString& w) {
         if (why) *why = w;
         return false;
     };
-    if (!m) return fail(tr("Select a measurement (extent box or depth marker) around the reference echo first."));
+    if (!m) return fail(tr("Select a measurement (extent box or depth marker) around the hole's echo first."));
     if (m->frame_index != frame_) return fail(tr("The measurement is on frame %1; go to that frame first.").arg(m->frame_index + 1));
-    const auto pk = peakIn(*m);
+    if (doc_.curve && doc_.curve->basis != core::AmplitudeBasis::BeforeTcg)
+        return fail(tr("The case's curve was converted from a single amplitude reference read after TCG. "
+                       "Clear it (Tools → Clear distance–amplitude curve) before picking holes for a new curve."));
+    if (doc_.curve && !doc_.curve->points.empty()) {
+        const auto d = curveRecipeDifferences();
+        if (!d.empty()) {
+            QStringList keys;
+            for (const auto& k : d) keys << QString::fromStdString(k);
+            return fail(tr("The recipe differs from the curve's in %1; a point read with it would not belong to the curve. "
+                           "Put those settings back or clear the curve.")
+                            .arg(keys.join(", ")));
+        }
+    }
+    const auto pk = peakBeforeTcgIn(*m);
     if (!pk) return fail(tr("No echo inside the measurement on this frame (no image yet, or amplitude zero)."));
-    core::AmplitudeReference r;
-    r.label = label.trimmed().toStdString();
-    if (r.label.empty()) r.label = "reference echo";
-    r.amplitude = pk->amplitude;
-    r.capture_sha256 = activeOrNull() ? activeOrNull()->sha256 : std::string();
-    r.recipe_json = recipe_.toJson();
-    r.frame = frame_;
-    r.x_mm = pk->x_mm;
-    r.z_mm = pk->z_mm;
-    editAmplitudeReference(r, tr("Set amplitude reference"));
+    core::DistanceAmplitudeCurve c;
+    if (doc_.curve) {
+        c = *doc_.curve;
+    } else {
+        c.label = curve_label.trimmed().toStdString();
+        if (c.label.empty()) c.label = "side-drilled holes, reference block";
+        c.basis = core::AmplitudeBasis::BeforeTcg;
+        c.recipe_json = recipe_.toJson();
+        c.recipe_fingerprint = core::amplitudeFingerprint(recipe_, c.basis);
+    }
+    core::DacPoint p;
+    p.depth_m = pk->z_mm * 1e-3;
+    p.x_m = pk->x_mm * 1e-3;
+    p.amplitude = pk->amplitude;
+    p.label = m->label.empty() || m->label == m->id ? QStringLiteral("echo at %1 mm").arg(pk->z_mm, 0, 'f', 1).toStdString()
+                                                    : m->label;
+    p.capture_sha256 = activeOrNull() ? activeOrNull()->sha256 : std::string();
+    p.frame = frame_;
+    editCurve(core::withPoint(std::move(c), p), tr("Add %1 mm to the distance–amplitude curve").arg(pk->z_mm, 0, 'f', 1));
     return true;
 }
 
-void CaseController::editAmplitudeReference(const std::optional<core::AmplitudeReference>& r, const QString& what) {
-    if (r == doc_.amplitude_reference) return;
-    undo_.push(new ValueCommand<std::optional<core::AmplitudeReference>>(
-        what, doc_.amplitude_reference, r, [this](const std::optional<core::AmplitudeReference>& v) { setAmplitudeReference(v); }));
+void CaseController::removeCurvePoint(size_t index) {
+    if (!doc_.curve || index >= doc_.curve->points.size()) return;
+    auto c = *doc_.curve;
+    const double z = c.points[index].depth_m * 1e3;
+    c.points.erase(c.points.begin() + static_cast<long>(index));
+    editCurve(c.points.empty() ? std::nullopt : std::optional(c),
+              tr("Remove %1 mm from the distance–amplitude curve").arg(z, 0, 'f', 1));
 }
 
-void CaseController::setAmplitudeReference(const std::optional<core::AmplitudeReference>& r) {
-    doc_.amplitude_reference = r;
-    emit referenceChanged();
+void CaseController::relabelCurve(const QString& label) {
+    if (!doc_.curve) return;
+    auto c = *doc_.curve;
+    c.label = label.toStdString();
+    editCurve(c, tr("Rename the distance–amplitude curve"));
+}
+
+void CaseController::editCurve(const std::optional<core::DistanceAmplitudeCurve>& c, const QString& what) {
+    if (c == doc_.curve) return;
+    undo_.push(new ValueCommand<std::optional<core::DistanceAmplitudeCurve>>(
+        what, doc_.curve, c, [this](const std::optional<core::DistanceAmplitudeCurve>& v) { setCurve(v); }));
+}
+
+void CaseController::setCurve(const std::optional<core::DistanceAmplitudeCurve>& c) {
+    doc_.curve = c;
+    emit curveChanged();
+}
+
+bool CaseController::makeTcgFromCurve(QString* why) {
+    if (!doc_.curve) {
+        if (why) *why = tr("There is no distance–amplitude curve yet.");
+        return false;
+    }
+    core::Recipe r = recipe_;
+    try {
+        const std::string text = core::tcgCurveText(core::tcgFromCurve(*doc_.curve));
+        r.setText("tgc.mode", "curve");
+        r.setText("tgc.curve", text);
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromStdString(e.what());
+        return false;
+    }
+    if (!(r == recipe_)) editRecipe(r, tr("Make TCG from the distance–amplitude curve"));
+    return true;
 }
 
 QString CaseController::amplitudeUnit() const {
-    if (!doc_.amplitude_reference) return tr("dB re frame peak");
-    return tr("dB re %1").arg(QString::fromStdString(doc_.amplitude_reference->label));
+    if (!doc_.curve) return tr("dB re frame peak");
+    return tr("dB re DAC (%1)").arg(QString::fromStdString(doc_.curve->label));
 }
 
-std::optional<double> CaseController::dbReReference(double linear) const {
-    if (!doc_.amplitude_reference || !(linear > 0) || !(doc_.amplitude_reference->amplitude > 0)) return std::nullopt;
-    return 20.0 * std::log10(linear / doc_.amplitude_reference->amplitude);
+std::optional<double> CaseController::curveBasisAmplitude(size_t ix, size_t iz) const {
+    if (!envelope_ || !doc_.curve || ix >= envelope_->nx() || iz >= envelope_->nz()) return std::nullopt;
+    const size_t i = iz * envelope_->nx() + ix;
+    if (doc_.curve->basis == core::AmplitudeBasis::BeforeTcg) return envelope_->envelope[i];
+    if (tgc_amp_.size() != envelope_->nx() * envelope_->nz()) return std::nullopt;
+    return tgc_amp_[i];
 }
 
-std::vector<std::string> CaseController::referenceRecipeDifferences() const {
-    std::vector<std::string> out;
-    if (!doc_.amplitude_reference) return out;
+std::optional<core::DacReading> CaseController::dbReCurveAt(size_t ix, size_t iz) const {
+    const auto a = curveBasisAmplitude(ix, iz);
+    if (!a) return std::nullopt;
+    return core::dbReCurve(*doc_.curve, *a, envelope_->z_m[iz]);
+}
+
+std::optional<core::DacReading> CaseController::dbReCurveAtMm(double x_mm, double z_mm) const {
+    const core::Frame* f = envelope_.get();
+    if (!f || f->nx() < 2 || f->nz() < 2) return std::nullopt;
+    const double dx = (f->x_m[1] - f->x_m[0]) * 1e3, dz = (f->z_m[1] - f->z_m[0]) * 1e3;
+    const long ix = std::lround((x_mm - f->x_m[0] * 1e3) / dx), iz = std::lround((z_mm - f->z_m[0] * 1e3) / dz);
+    if (ix < 0 || iz < 0 || ix >= static_cast<long>(f->nx()) || iz >= static_cast<long>(f->nz())) return std::nullopt;
+    return dbReCurveAt(static_cast<size_t>(ix), static_cast<size_t>(iz));
+}
+
+std::vector<std::string> CaseController::curveRecipeDifferences() const {
+    if (!doc_.curve || doc_.curve->recipe_json.empty()) return {};
     core::Recipe ref = recon::defaultRecipe();
     try {
-        if (!doc_.amplitude_reference->recipe_json.empty()) ref.mergeJson(doc_.amplitude_reference->recipe_json, "amplitude reference");
+        ref.mergeJson(doc_.curve->recipe_json, "distance–amplitude curve");
     } catch (const std::exception&) {
-        return {"(the reference's recipe cannot be read)"};
+        return {"(the curve's recipe cannot be read)"};
     }
-    for (const auto& st : recipe_.stages())
-        for (const auto& p : st.params) {
-            const std::string key = st.name + "." + p.name;
-            // Display settings re-map the image only, except TCG: the reference amplitude is after TCG.
-            if (p.display_only && st.name != "tgc") continue;
-            // The grid's edges only crop the image; its step does change sampled peaks.
-            if (st.name == "grid" && p.name != "step_mm") continue;
-            if (!ref.has(key)) continue;
-            if (ref.values().at(key) != recipe_.values().at(key)) out.push_back(key);
-        }
-    return out;
+    return core::amplitudeDifferences(recipe_, ref, doc_.curve->basis);
 }
 
-QString CaseController::referenceWarning() const {
-    const auto d = referenceRecipeDifferences();
+QString CaseController::curveWarning() const {
+    if (!doc_.curve) return {};
+    if (doc_.curve->recipe_json.empty())
+        return tr("The curve's recipe is not recorded: amplitudes cannot be checked as comparable with it.");
+    const auto d = curveRecipeDifferences();
     if (d.empty()) return {};
     QStringList keys;
     for (const auto& k : d) keys << QString::fromStdString(k);
-    return tr("Amplitudes not comparable with the reference: the recipe differs in %1.").arg(keys.join(", "));
+    return tr("Amplitudes not comparable with the distance–amplitude curve: the recipe differs from the curve's in %1.")
+        .arg(keys.join(", "));
+}
+
+QString CaseController::outsideText() const {
+    const auto r = doc_.curve ? core::depthRange(*doc_.curve) : std::nullopt;
+    if (!r) return {};
+    if (r->second - r->first < 1e-9)
+        return tr("outside the curve (one point, at %1 mm: level held)").arg(r->first * 1e3, 0, 'f', 1);
+    return tr("outside the curve's depth range %1–%2 mm (end level held)").arg(r->first * 1e3, 0, 'f', 1).arg(r->second * 1e3, 0, 'f', 1);
 }
 
 std::string CaseController::addFindingFromMeasurement(const std::string& measurement_id) {
@@ -874,14 +971,19 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
                 f.indication.peak_db = best;
                 f.indication.reference = "frame peak (display reference, recipe log compression)";
             }
-            // With a case reference: the peak of the TCG-corrected envelope re the reference.
-            if (doc_.amplitude_reference) {
+            // With a curve: the highest dB re the curve at its depth inside the measurement.
+            if (doc_.curve) {
                 f.indication.peak_db.reset();
-                if (const auto pk = peakIn(*m); pk && pk->amplitude > 0) {
-                    f.indication.peak_db = *dbReReference(pk->amplitude);
-                    f.indication.reference = doc_.amplitude_reference->label;
-                    if (!referenceRecipeDifferences().empty())
-                        f.indication.reference += " (recipe differs from the reference's: not comparable)";
+                if (const auto pk = peakReCurveIn(*m)) {
+                    f.indication.peak_db = pk->reading.db;
+                    std::ostringstream ref;
+                    ref.setf(std::ios::fixed);
+                    ref.precision(1);
+                    ref << "distance–amplitude curve (" << doc_.curve->label << ") at " << pk->z_mm << " mm";
+                    f.indication.reference = ref.str();
+                    if (pk->reading.outside) f.indication.reference += ", " + outsideText().toStdString();
+                    if (!curveWarning().isEmpty())
+                        f.indication.reference += " (recipe differs from the curve's: not comparable)";
                 }
             }
         }

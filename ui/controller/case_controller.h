@@ -158,34 +158,60 @@ public:
     void setFindings(const std::vector<core::Finding>& fs);  ///< no undo (commands use it)
     /// New finding pre-filled from a measurement (location, sizes, peak dB). Returns its id.
     std::string addFindingFromMeasurement(const std::string& measurement_id);
-    // ------------------------------------------------------------------ amplitude reference
-    /// The case's amplitude reference (0 dB), if set.
-    const std::optional<core::AmplitudeReference>& amplitudeReference() const { return doc_.amplitude_reference; }
-    /// Undoable: sets the reference from the peak of the TCG-corrected envelope inside the
-    /// measurement (extent box, −6 dB sizing, caliper, ellipse: its bounding box; depth marker:
-    /// ±0.5 mm about its depth) on the current frame. Returns false with `why` when there is no
-    /// such peak (no image, measurement on another frame, nothing above zero).
-    bool setAmplitudeReferenceFrom(const std::string& measurement_id, const QString& label, QString* why = nullptr);
+    // ------------------------------------------------------------------ distance–amplitude curve
+    /// The case's distance–amplitude curve (the amplitude reference), if any.
+    const std::optional<core::DistanceAmplitudeCurve>& curve() const { return doc_.curve; }
+    /// Undoable: adds the peak of the envelope before TCG inside the measurement (extent box,
+    /// −6 dB sizing, caliper, ellipse: its bounding box; depth marker: ±0.5 mm about its depth)
+    /// on the current frame as a point of the curve; starts a curve named `curve_label` when
+    /// there is none. Returns false with `why` when there is no such peak, or when the recipe's
+    /// amplitude settings differ from the curve's (the keys are named), or when the curve holds
+    /// amplitudes after TCG (converted from a single reference: clear it first).
+    bool addCurvePointFrom(const std::string& measurement_id, QString* why = nullptr, const QString& curve_label = {});
+    /// Undoable removal of point `index` (in depth order); removing the last point clears the curve.
+    void removeCurvePoint(size_t index);
+    /// Undoable new label of the curve.
+    void relabelCurve(const QString& label);
     /// Undoable replacement (nullopt clears it).
-    void editAmplitudeReference(const std::optional<core::AmplitudeReference>& r, const QString& what);
-    void setAmplitudeReference(const std::optional<core::AmplitudeReference>& r);  ///< no undo (commands use it)
-    /// "dB re Ø2.5 mm SDH at 10 mm" with a reference, "dB re frame peak" without.
+    void editCurve(const std::optional<core::DistanceAmplitudeCurve>& c, const QString& what);
+    void setCurve(const std::optional<core::DistanceAmplitudeCurve>& c);  ///< no undo (commands use it)
+    /// Undoable recipe edit: TCG mode "curve" with the gain core::tcgFromCurve gives, so equal
+    /// reflectors on the curve display equal. False with `why` when the curve cannot give one.
+    bool makeTcgFromCurve(QString* why = nullptr);
+    /// "dB re DAC (<label>)" with a curve, "dB re frame peak" without.
     QString amplitudeUnit() const;
+    /// Linear amplitude of the current frame that the curve compares with at pixel (ix, iz):
+    /// the envelope before TCG (or after, for a curve read after TCG). nullopt outside the image.
+    std::optional<double> curveBasisAmplitude(size_t ix, size_t iz) const;
+    /// dB re the curve at the depth of pixel (ix, iz) of the current frame, with the outside flag.
+    std::optional<core::DacReading> dbReCurveAt(size_t ix, size_t iz) const;
+    /// The same at the pixel nearest (x_mm, z_mm); nullopt outside the image or without a curve.
+    std::optional<core::DacReading> dbReCurveAtMm(double x_mm, double z_mm) const;
     /// Linear amplitude after TCG of the current frame, [N_z][N_x] (empty without an image).
     const std::vector<float>& tgcAmplitude() const { return tgc_amp_; }
-    /// dB of a linear (after TCG) amplitude relative to the reference; nullopt without one or for 0.
-    std::optional<double> dbReReference(double linear) const;
-    /// Recipe keys that affect amplitudes (reconstruction settings and TCG) and differ between the
-    /// current recipe and the reference's ("stage.param"); empty without a reference.
-    std::vector<std::string> referenceRecipeDifferences() const;
-    /// One sentence warning that amplitudes are not comparable, naming the keys; "" when comparable.
-    QString referenceWarning() const;
-    /// Peak of the TCG-corrected envelope inside a measurement on the current frame.
+    /// Recipe keys that change amplitudes on the curve's basis and differ between the current
+    /// recipe and the curve's ("stage.param"); empty without a curve.
+    std::vector<std::string> curveRecipeDifferences() const;
+    /// One sentence warning that amplitudes are not comparable with the curve (naming the keys,
+    /// or saying the curve's recipe is not recorded); "" when comparable or without a curve.
+    QString curveWarning() const;
+    /// "outside the curve's depth range 5.0–20.0 mm (end level held)"; "" without a curve.
+    QString outsideText() const;
+    /// Peak of an envelope inside a measurement on the current frame.
     struct Peak {
         double amplitude = 0;
         double x_mm = 0, z_mm = 0;
     };
+    /// Peak of the TCG-corrected envelope inside a measurement on the current frame.
     std::optional<Peak> peakIn(const core::Measurement& m) const;
+    /// Peak of the envelope before TCG inside a measurement on the current frame.
+    std::optional<Peak> peakBeforeTcgIn(const core::Measurement& m) const;
+    /// Highest dB re the curve inside a measurement on the current frame, where it is.
+    struct CurvePeak {
+        core::DacReading reading;
+        double x_mm = 0, z_mm = 0;
+    };
+    std::optional<CurvePeak> peakReCurveIn(const core::Measurement& m) const;
     /// Quantities of a measurement: core::evaluate, and for a −6 dB sizing on the current frame
     /// the drop sizing of the TCG-corrected envelope (box quantities on other frames).
     std::vector<core::Quantity> quantities(const core::Measurement& m) const;
@@ -218,7 +244,7 @@ signals:
     void measurementsChanged();
     void selectionChanged(QString id);
     void findingsChanged();
-    void referenceChanged();      ///< amplitude reference set, changed or cleared
+    void curveChanged();          ///< distance–amplitude curve set, changed or cleared
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
@@ -243,6 +269,10 @@ private:
     template <typename T>
     std::function<void(const T&)> onThisCapture(std::function<void(const T&)> set);
     void ensureActiveCapture(size_t index);
+    /// Pixels (ix, iz) of the current frame inside a measurement's box (see addCurvePointFrom).
+    template <class F>
+    void forEachPixelIn(const core::Measurement& m, F&& f) const;
+    std::optional<Peak> peakOf(const core::Measurement& m, const std::vector<float>& amp) const;
     void onFrameReady(quint64 gen, qulonglong frame, FramePtr img, double seconds, double fidelity, bool background);
     core::CaseCapture& active();
     const core::CaseCapture* activeOrNull() const;

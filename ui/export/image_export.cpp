@@ -42,14 +42,21 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
             for (const auto& m : scene.measurements) here = here || m.id == id;
         if (!here) continue;
         QString t = QStringLiteral("F%1: %2").arg(f.number).arg(QString::fromStdString(f.indication.location));
-        if (f.indication.peak_db) t += QStringLiteral(", peak %1 dB").arg(*f.indication.peak_db, 0, 'f', 1);
+        if (f.indication.peak_db)
+            t += QStringLiteral(", peak %1 dB%2").arg(*f.indication.peak_db, 0, 'f', 1).arg(ctl.curve() ? QStringLiteral(" re DAC") : QString());
         fs << t;
     }
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
-    if (ctl.amplitudeReference()) {
-        QString ref = QStringLiteral("Finding amplitudes in %1").arg(ctl.amplitudeUnit());
-        if (!ctl.referenceWarning().isEmpty()) ref += QStringLiteral(" — ") + ctl.referenceWarning();
-        style.caption << ref;
+    if (const auto& c = ctl.curve()) {
+        style.caption << QStringLiteral("Peaks in dB re DAC at their depth; DAC: %1")
+                             .arg(QString::fromStdString(c->label));
+        if (const auto r = core::depthRange(*c))
+            style.caption << QStringLiteral("DAC from %1 point(s), %2–%3 mm, amplitudes read %4; outside that range the end level is held")
+                                 .arg(c->points.size())
+                                 .arg(r->first * 1e3, 0, 'f', 1)
+                                 .arg(r->second * 1e3, 0, 'f', 1)
+                                 .arg(QString::fromUtf8(core::basisName(c->basis)));
+        if (!ctl.curveWarning().isEmpty()) style.caption << ctl.curveWarning();
     }
     if (ctl.hasCapture() && ctl.header().isSynthetic()) style.caption << QStringLiteral("Synthetic demonstration data");
 

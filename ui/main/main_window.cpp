@@ -38,6 +38,7 @@
 #include "core/case_file.h"
 #include "core/error.h"
 #include "ui/controller/case_controller.h"
+#include "ui/dac/curve_panel.h"
 #include "ui/export/image_export.h"
 #include "ui/findings/findings_pane.h"
 #include "ui/main/findings_dock.h"
@@ -104,17 +105,12 @@ MainWindow::MainWindow(Options options, QWidget* parent)
         }
         const auto db = view_->dbAt(mm);
         QString amp = db ? QStringLiteral("%1 dB re frame peak").arg(*db, 0, 'f', 1) : QStringLiteral("—");
-        if (ctl_->amplitudeReference()) {
-            // dB of the TCG-corrected envelope at the nearest pixel, relative to the case reference.
+        if (ctl_->curve()) {
+            // dB of the envelope re the distance–amplitude curve at this depth (nearest pixel).
             amp = QStringLiteral("—");
-            const core::Frame* f = ctl_->envelope();
-            const auto& a = ctl_->tgcAmplitude();
-            if (f && f->nx() > 1 && f->nz() > 1 && a.size() == f->nx() * f->nz()) {
-                const double dx = (f->x_m[1] - f->x_m[0]) * 1e3, dz = (f->z_m[1] - f->z_m[0]) * 1e3;
-                const long ix = std::lround((mm.x() - f->x_m[0] * 1e3) / dx), iz = std::lround((mm.y() - f->z_m[0] * 1e3) / dz);
-                if (ix >= 0 && iz >= 0 && ix < static_cast<long>(f->nx()) && iz < static_cast<long>(f->nz()))
-                    if (const auto r = ctl_->dbReReference(a[static_cast<size_t>(iz) * f->nx() + static_cast<size_t>(ix)]))
-                        amp = QStringLiteral("%1 %2").arg(*r, 0, 'f', 1).arg(ctl_->amplitudeUnit());
+            if (const auto r = ctl_->dbReCurveAtMm(mm.x(), mm.y())) {
+                amp = QStringLiteral("%1 %2").arg(r->db, 0, 'f', 1).arg(ctl_->amplitudeUnit());
+                if (r->outside) amp += QStringLiteral(" — ") + ctl_->outsideText();
             }
         }
         readout_->setText(tr("x %1 mm   depth %2 mm   %3").arg(mm.x(), 0, 'f', 2).arg(mm.y(), 0, 'f', 2).arg(amp));
@@ -175,6 +171,19 @@ void MainWindow::buildDocks() {
     md->setWidget(table_);
     addDockWidget(Qt::RightDockWidgetArea, md);
     splitDockWidget(fd, md, Qt::Vertical);
+    curve_ = new CurvePanel(ctl_);
+    auto* cd = new QDockWidget(tr("Distance–amplitude curve"), this);
+    cd->setObjectName("CurveDock");
+    cd->setWidget(curve_);
+    addDockWidget(Qt::RightDockWidgetArea, cd);
+    tabifyDockWidget(md, cd);
+    md->raise();
+    connect(curve_, &CurvePanel::addRequested, this, &MainWindow::addCurvePointFromSelection);
+    connect(curve_, &CurvePanel::makeTcgRequested, this, &MainWindow::makeTcgFromCurve);
+    // A point added or removed: show the list.
+    connect(ctl_, &CaseController::curveChanged, cd, [this, cd] {
+        if (ctl_->curve()) cd->raise();
+    });
 
     trace_ = new TraceView(ctl_);
     auto* td = new QDockWidget(tr("Trace view"), this);
@@ -283,10 +292,14 @@ void MainWindow::buildActions() {
     a = tools->addAction(tr("Add &finding from selected measurement"), this, &MainWindow::addFindingFromSelection);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_F));
     tools->addSeparator();
-    a = tools->addAction(tr("Set amplitude &reference from selection…"), this, &MainWindow::setReferenceFromSelection);
-    a->setToolTip(tr("The peak inside the selected box (or at the selected depth marker) on this frame becomes 0 dB"));
-    a = tools->addAction(tr("Clear amplitude reference"), this, [this] {
-        ctl_->editAmplitudeReference(std::nullopt, tr("Clear amplitude reference"));
+    a = tools->addAction(tr("Add to distance–amplitude &curve"), this, &MainWindow::addCurvePointFromSelection);
+    a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_K));
+    a->setToolTip(tr("The peak of the echo inside the selected box (or at the selected depth marker) on this frame "
+                     "becomes a point of the case's distance–amplitude curve"));
+    a = tools->addAction(tr("Make &TCG from curve"), this, &MainWindow::makeTcgFromCurve);
+    a->setToolTip(tr("TCG gain that raises each depth by the curve's fall from its shallowest point: equal holes display equal"));
+    a = tools->addAction(tr("Clear distance–amplitude curve"), this, [this] {
+        ctl_->editCurve(std::nullopt, tr("Clear the distance–amplitude curve"));
     });
 
     QMenu* view = menuBar()->addMenu(tr("&View"));
@@ -386,7 +399,7 @@ void MainWindow::buildStatusBar() {
     ref_warning_ = new QLabel;
     ref_warning_->setStyleSheet("color: #b3261e; font-weight: bold;");
     ref_warning_->hide();
-    connect(ctl_, &CaseController::referenceChanged, this, &MainWindow::updateReferenceWarning);
+    connect(ctl_, &CaseController::curveChanged, this, &MainWindow::updateReferenceWarning);
     connect(ctl_, &CaseController::recipeChanged, this, &MainWindow::updateReferenceWarning);
     statusBar()->addWidget(readout_);
     statusBar()->addPermanentWidget(ref_warning_);  // permanent: temporary messages never cover it
@@ -679,48 +692,54 @@ void MainWindow::addFindingFromSelection() {
     statusBar()->showMessage(tr("Finding added from %1: describe what is seen in the Findings pane").arg(id), 6000);
 }
 
-void MainWindow::setReferenceFromSelection() {
+void MainWindow::addCurvePointFromSelection() {
     const QString id = ctl_->selectedMeasurement();
     if (id.isEmpty()) {
-        statusBar()->showMessage(tr("Select an extent box or depth marker around the reference echo first"), 6000);
+        statusBar()->showMessage(tr("Select an extent box or depth marker around a side-drilled hole's echo first"), 6000);
         return;
     }
-    QString label = QStringLiteral("Ø2.5 mm SDH at %1 mm, reference block");
-    if (const auto* m = ctl_->measurement(id.toStdString()); m && !m->points.empty())
-        label = label.arg(m->kind == core::MeasurementKind::DepthMarker ? m->points[0].z_mm
-                                                                       : 0.5 * (m->points[0].z_mm + m->points.back().z_mm),
-                          0, 'f', 0);
-    if (opt_.interactive) {
+    QString curve_label;
+    if (!ctl_->curve() && opt_.interactive) {
         bool ok = false;
-        label = QInputDialog::getText(this, tr("Amplitude reference"),
-                                      tr("What is the reference echo (reflector, depth, block)? Its peak becomes 0 dB."),
-                                      QLineEdit::Normal, label, &ok);
+        curve_label = QInputDialog::getText(this, tr("Distance–amplitude curve"),
+                                            tr("What are the reflectors (diameter, kind, block)? Every point of the curve "
+                                               "must come from equal reflectors."),
+                                            QLineEdit::Normal, QStringLiteral("Ø2.5 mm side-drilled holes, reference block"), &ok);
         if (!ok) return;
     }
     QString why;
-    if (!ctl_->setAmplitudeReferenceFrom(id.toStdString(), label, &why))
-        showError(tr("Cannot set the amplitude reference"), why);
+    if (!ctl_->addCurvePointFrom(id.toStdString(), &why, curve_label))
+        showError(tr("Cannot add the point"), why);
     else
-        statusBar()->showMessage(tr("Amplitude reference set: %1").arg(label), 6000);
+        statusBar()->showMessage(tr("Added to the distance–amplitude curve (%n point(s))", "", static_cast<int>(ctl_->curve()->points.size())), 6000);
+}
+
+void MainWindow::makeTcgFromCurve() {
+    QString why;
+    if (!ctl_->makeTcgFromCurve(&why)) showError(tr("Cannot make a TCG from the curve"), why);
+    else statusBar()->showMessage(tr("TCG set from the distance–amplitude curve: %1").arg(QString::fromStdString(ctl_->recipe().text("tgc.curve"))), 8000);
 }
 
 void MainWindow::updateReferenceWarning() {
-    const QString w = ctl_->referenceWarning();
-    const auto& ref = ctl_->amplitudeReference();
+    const auto& c = ctl_->curve();
+    const QString w = ctl_->curveWarning();
     if (!w.isEmpty()) {
         ref_warning_->setStyleSheet("color: #b3261e; font-weight: bold;");
         ref_warning_->setText(w);
-    } else if (ref) {
+    } else if (const auto r = c ? core::depthRange(*c) : std::nullopt) {
         ref_warning_->setStyleSheet("color: #3b4250;");
-        ref_warning_->setText(tr("0 dB = %1").arg(QString::fromStdString(ref->label)));
+        ref_warning_->setText(tr("0 dB = DAC, %1 (%2–%3 mm)")
+                                  .arg(QString::fromStdString(c->label))
+                                  .arg(r->first * 1e3, 0, 'f', 1)
+                                  .arg(r->second * 1e3, 0, 'f', 1));
     }
-    ref_warning_->setToolTip(ref ? tr("Amplitude reference: %1, linear amplitude %2 after TCG, taken at x = %3 mm, depth %4 mm")
-                                       .arg(QString::fromStdString(ref->label))
-                                       .arg(ref->amplitude, 0, 'g', 4)
-                                       .arg(ref->x_mm, 0, 'f', 1)
-                                       .arg(ref->z_mm, 0, 'f', 1)
-                                 : QString());
-    ref_warning_->setVisible(ref.has_value());
+    ref_warning_->setToolTip(c ? tr("Distance–amplitude curve: %1, %2 point(s), amplitudes read %3; recipe fingerprint %4")
+                                     .arg(QString::fromStdString(c->label))
+                                     .arg(c->points.size())
+                                     .arg(QString::fromUtf8(core::basisName(c->basis)))
+                                     .arg(c->recipe_fingerprint.empty() ? tr("not recorded") : QString::fromStdString(c->recipe_fingerprint))
+                               : QString());
+    ref_warning_->setVisible(c.has_value());
 }
 
 bool MainWindow::openDemo(const QString& dir) { return openDemoCase(dir, QStringLiteral("weld")); }
@@ -752,7 +771,7 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
             if (QFileInfo::exists(block)) ctl_->addCapture(block, false);
             t.title = "Weld W-031, spool 14 (synthetic demo)";
             t.background = "Production weld, 5 % random selection for volumetric examination under the shop's written procedure. "
-                           "Reference block RB-20 is the case's second capture.";
+                           "Reference block RB-25 is the case's second capture.";
             // Start where there is something to see: y = 0 mm crosses the fusion-face reflector.
             if (ctl_->frameCount() > 10) ctl_->setCurrentFrame(10);
             hint = tr("Demo: this frame (y = 0 mm) crosses a fusion-face reflector near 10 mm depth, right of the weld centre. "
@@ -822,21 +841,31 @@ void MainWindow::demoAnnotate() {
     ctl_->editFindings(fs, tr("Describe finding"));
 }
 
-bool MainWindow::demoReference(double depth_mm) {
+bool MainWindow::demoCurve(const std::vector<double>& depths_mm) {
     const core::Frame* f = ctl_->envelope();
     if (!f || f->nx() < 3 || f->nz() < 3) return false;
-    // A box across the image, ±1.5 mm about the stated depth: its peak is the hole's echo.
-    core::Measurement box;
-    box.kind = core::MeasurementKind::ExtentBox;
-    box.frame_index = ctl_->currentFrame();
-    box.points = {{f->x_m.front() * 1e3, depth_mm - 1.5}, {f->x_m.back() * 1e3, depth_mm + 1.5}};
-    box.label = "reference echo";
-    const std::string id = ctl_->addMeasurement(box);
-    QString why;
-    const bool ok = ctl_->setAmplitudeReferenceFrom(
-        id, QStringLiteral("Ø2.5 mm SDH at %1 mm, reference block").arg(depth_mm, 0, 'f', 0), &why);
-    if (!ok) std::fprintf(stderr, "umbra: demo reference: %s\n", why.toLocal8Bit().constData());
-    return ok;
+    bool all = true;
+    for (double depth_mm : depths_mm) {
+        // A box across the image, ±1.5 mm about the stated depth: its peak is the hole's echo.
+        core::Measurement box;
+        box.kind = core::MeasurementKind::ExtentBox;
+        box.frame_index = ctl_->currentFrame();
+        box.points = {{f->x_m.front() * 1e3, depth_mm - 1.5}, {f->x_m.back() * 1e3, depth_mm + 1.5}};
+        box.label = QStringLiteral("SDH at %1 mm").arg(depth_mm, 0, 'f', 0).toStdString();
+        const std::string id = ctl_->addMeasurement(box);
+        QString why;
+        if (!ctl_->addCurvePointFrom(id, &why, QStringLiteral("Ø2.5 mm side-drilled holes, reference block RB-25"))) {
+            std::fprintf(stderr, "umbra: demo curve at %.1f mm: %s\n", depth_mm, why.toLocal8Bit().constData());
+            all = false;
+        }
+    }
+    if (const auto& c = ctl_->curve(); c && !c->points.empty()) {
+        std::fprintf(stderr, "umbra: distance–amplitude curve (%s, amplitudes %s):", c->label.c_str(), core::basisName(c->basis));
+        for (const auto& p : c->points)
+            std::fprintf(stderr, " %.2f mm %+.2f dB;", p.depth_m * 1e3, 20 * std::log10(p.amplitude / c->points.front().amplitude));
+        std::fprintf(stderr, " (dB re the shallowest)\n");
+    }
+    return all;
 }
 
 // ------------------------------------------------------------------------------- events

@@ -8,6 +8,7 @@
 #include <QStringList>
 
 #include <functional>
+#include <vector>
 
 class QAction;
 class QActionGroup;
@@ -22,6 +23,7 @@ class QToolButton;
 namespace umbra::ui {
 
 class CaseController;
+class CurvePanel;
 class ImageView;
 class RecipePanel;
 class TraceView;
@@ -49,6 +51,7 @@ public:
     ImageView* imageView() const { return view_; }
     RecipePanel* recipePanel() const { return recipe_; }
     TraceView* traceView() const { return trace_; }
+    CurvePanel* curvePanel() const { return curve_; }
 
     /// Opens a capture (.h5) or a case (.umbracase). Returns false (after telling the user) on error.
     bool openPath(const QString& path);
@@ -62,9 +65,10 @@ public:
     bool openDemoCase(const QString& dir, const QString& name);
     static QStringList demoCaseNames();
     /// Places a demonstration caliper, extent box and finding on the strongest echo.
-    /// Demo: sets the case's amplitude reference from the strongest echo within ±1.5 mm of
-    /// `depth_mm` on the current frame (the reference block's side-drilled hole). False if none.
-    bool demoReference(double depth_mm = 10.0);
+    /// Demo: adds to the case's distance–amplitude curve the strongest echo within ±1.5 mm of
+    /// each depth (mm) on the current frame (the reference block's side-drilled holes), and
+    /// prints the curve (dB re its shallowest point) to stderr. False if any is missing.
+    bool demoCurve(const std::vector<double>& depths_mm = {5, 10, 15, 20});
     void demoAnnotate();
     /// Writes the annotated PNG of the current view.
     bool exportImage(const QString& path, int width_px);
@@ -98,7 +102,8 @@ private:
     void loadRecipe();
     void saveRecipe();
     void addFindingFromSelection();
-    void setReferenceFromSelection();
+    void addCurvePointFromSelection();
+    void makeTcgFromCurve();
     void updateReferenceWarning();
     void setTool(Tool t);
     /// Folder of the case file, else of the active capture ("" when neither): where file
@@ -117,6 +122,7 @@ private:
     RecipePanel* recipe_ = nullptr;
     TraceView* trace_ = nullptr;
     TopView* top_ = nullptr;
+    CurvePanel* curve_ = nullptr;
     QWidget* findings_ = nullptr;
     QWidget* table_ = nullptr;
     QDockWidget* top_dock_ = nullptr;
@@ -131,7 +137,7 @@ private:
     QComboBox* capture_combo_ = nullptr;
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;
-    QLabel* ref_warning_ = nullptr;  ///< amplitude reference: not comparable with the current recipe
+    QLabel* ref_warning_ = nullptr;  ///< distance–amplitude curve: what 0 dB is, or not comparable with the recipe
     QLabel* progress_label_ = nullptr;  ///< what is running (beside the bar, never inside it)
     QProgressBar* progress_ = nullptr;
     QToolButton* cancel_ = nullptr;

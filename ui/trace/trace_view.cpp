@@ -14,6 +14,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/distance_amplitude.h"
 #include "ui/controller/case_controller.h"
 #include "ui/viewer/scene_painter.h"
 
@@ -31,6 +32,11 @@ void TracePlot::setTrace(std::vector<double> depth_mm, std::vector<float> db, do
     level_ = level_db;
     cursor_ = cursor_depth_mm;
     title_ = title;
+    update();
+}
+
+void TracePlot::setCurve(CurveOverlay curve) {
+    curve_ = std::move(curve);
     update();
 }
 
@@ -94,13 +100,63 @@ void TracePlot::paintEvent(QPaintEvent*) {
     }
     p.setPen(QPen(QColor(31, 95, 158), 1.4));
     p.drawPath(path);
-    // Reporting level.
+    const bool with_curve = curve_.depth_mm.size() >= 2 && curve_.db.size() == curve_.depth_mm.size();
+    if (with_curve) {
+        // Depths the curve's points do not cover: shaded, and said so.
+        const QColor shade(120, 120, 120, 36);
+        const double c0 = std::clamp(curve_.covered_from_mm, z0, z1), c1 = std::clamp(curve_.covered_to_mm, z0, z1);
+        if (c0 > z0) p.fillRect(QRectF(QPointF(X(z0), a.top()), QPointF(X(c0), a.bottom())), shade);
+        if (c1 < z1) p.fillRect(QRectF(QPointF(X(c1), a.top()), QPointF(X(z1), a.bottom())), shade);
+        p.setPen(QColor(90, 90, 90));
+        if (c1 < z1 && X(z1) - X(c1) > 70)
+            p.drawText(QRectF(X(c1), a.bottom() - 16, X(z1) - X(c1), 14), Qt::AlignCenter, tr("outside curve"));
+        if (c0 > z0 && X(c0) - X(z0) > 70)
+            p.drawText(QRectF(X(z0), a.bottom() - 16, X(c0) - X(z0), 14), Qt::AlignCenter, tr("outside curve"));
+        // The curve: solid where its points cover the depth, dotted where the end level is held.
+        auto curvePath = [&](double offset, bool inside) {
+            QPainterPath cp;
+            bool open = false;
+            for (size_t i = 0; i < curve_.depth_mm.size(); ++i) {
+                const double z = curve_.depth_mm[i];
+                const bool in = z >= curve_.covered_from_mm - 1e-9 && z <= curve_.covered_to_mm + 1e-9;
+                if (in != inside) {
+                    open = false;
+                    continue;
+                }
+                const QPointF pt(X(z), Y(std::clamp<double>(curve_.db[i] + offset, floor_, top_)));
+                if (!open) cp.moveTo(pt);
+                else cp.lineTo(pt);
+                open = true;
+            }
+            return cp;
+        };
+        const QColor cc(22, 122, 74);
+        p.setPen(QPen(cc, 2.0));
+        p.drawPath(curvePath(0, true));
+        p.setPen(QPen(cc, 1.4, Qt::DotLine));
+        p.drawPath(curvePath(0, false));
+        p.setPen(cc);
+        p.drawText(QRectF(a.right() - 160, a.top() + 2, 156, 14), Qt::AlignRight | Qt::AlignVCenter, tr("distance–amplitude curve"));
+    }
+    // Reporting level: a horizontal line, or the curve shifted by the level.
     QPen lp(QColor(196, 64, 40), 1.2, Qt::DashLine);
     p.setPen(lp);
-    const double ly = Y(std::clamp(level_, floor_, top_));
-    p.drawLine(QPointF(a.left(), ly), QPointF(a.right(), ly));
+    double ly = Y(std::clamp(level_, floor_, top_));
+    if (with_curve && curve_.level_follows_curve) {
+        QPainterPath lpath;
+        for (size_t i = 0; i < curve_.depth_mm.size(); ++i) {
+            const QPointF pt(X(curve_.depth_mm[i]), Y(std::clamp<double>(curve_.db[i] + level_, floor_, top_)));
+            if (i == 0) lpath.moveTo(pt);
+            else lpath.lineTo(pt);
+        }
+        p.drawPath(lpath);
+        ly = Y(std::clamp<double>(curve_.db.front() + level_, floor_, top_));
+    } else {
+        p.drawLine(QPointF(a.left(), ly), QPointF(a.right(), ly));
+    }
     // Label at the left end (near field: the trace is usually low there), on its own background.
-    const QString lt = tr("reporting level %1 dB").arg(level_, 0, 'f', 1);
+    const QString lt = with_curve && curve_.level_follows_curve ? tr("reporting level: curve %1 dB").arg(level_, 0, 'f', 1)
+                                                                : tr("reporting level %1 dB").arg(level_, 0, 'f', 1);
     QRectF lr = QFontMetricsF(p.font()).boundingRect(lt).adjusted(-3, -1, 3, 1);
     lr.moveTopLeft(QPointF(a.left() + 4, ly - lr.height() - 2));
     if (lr.top() < a.top()) lr.moveTop(ly + 2);
@@ -149,9 +205,14 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
     level_->setSingleStep(1);
     level_->setValue(-12);
     level_->setSuffix(" dB");
-    level_->setToolTip(tr("Reporting level drawn on the trace: dB relative to the case's amplitude reference "
-                          "(Tools → Set amplitude reference), or to the frame peak without one "
+    level_->setToolTip(tr("Reporting level drawn on the trace: dB relative to the case's distance–amplitude curve "
+                          "(Tools → Add to distance–amplitude curve), or to the frame peak without one "
                           "(a view setting; the written procedure states the real one)"));
+    re_curve_ = new QCheckBox(tr("dB re curve at each depth"));
+    re_curve_->setChecked(true);
+    re_curve_->setToolTip(tr("With a distance–amplitude curve: on, the trace is in dB re the curve at each depth (the curve "
+                             "is the 0 dB line); off, in dB re the curve's shallowest point, with the curve drawn falling"));
+    re_curve_->setVisible(false);
     rf_on_ = new QCheckBox(tr("Raw RF of transmit"));
     rf_on_->setToolTip(tr("Show the recorded trace of one transmit-receive pair of this frame"));
     tx_ = new QSpinBox;
@@ -160,6 +221,8 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
     rx_->setToolTip(tr("Receive channel (0-based)"));
     bar->addWidget(new QLabel(tr("Reporting level")));
     bar->addWidget(level_);
+    bar->addSpacing(16);
+    bar->addWidget(re_curve_);
     bar->addSpacing(16);
     bar->addWidget(rf_on_);
     bar->addWidget(tx_);
@@ -171,7 +234,8 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
     v->addWidget(plot_, 1);
     connect(level_, &QDoubleSpinBox::valueChanged, this, &TraceView::refresh);
     connect(ctl_, &CaseController::imageChanged, this, &TraceView::refresh);
-    connect(ctl_, &CaseController::referenceChanged, this, &TraceView::refresh);
+    connect(ctl_, &CaseController::curveChanged, this, &TraceView::refresh);
+    connect(re_curve_, &QCheckBox::toggled, this, &TraceView::refresh);
     connect(ctl_, &CaseController::recipeChanged, this, &TraceView::refresh);
     connect(ctl_, &CaseController::captureChanged, this, [this] {
         const auto& h = ctl_->header();
@@ -189,6 +253,9 @@ TraceView::TraceView(CaseController* controller, QWidget* parent) : QWidget(pare
 
 double TraceView::reportingLevelDb() const { return level_->value(); }
 
+void TraceView::setReCurve(bool on) { re_curve_->setChecked(on); }
+bool TraceView::reCurve() const { return re_curve_->isChecked(); }
+
 void TraceView::setCursor(double x_mm, double depth_mm) {
     x_mm_ = x_mm;
     depth_mm_ = depth_mm;
@@ -201,6 +268,7 @@ void TraceView::refresh() {
     const auto& db = ctl_->db();
     if (!f || f->nx() < 2 || db.size() != f->nx() * f->nz()) {
         plot_->setTrace({}, {}, -ctl_->dynamicRangeDb(), level_->value(), -1, tr("Trace view"));
+        plot_->setCurve({});
         return;
     }
     if (!have_x_) {
@@ -216,22 +284,40 @@ void TraceView::refresh() {
     std::vector<float> col(f->nz());
     const QString title =
         tr("Amplitude at x = %1 mm, frame %2").arg(f->x_m[static_cast<size_t>(ix)] * 1e3, 0, 'f', 2).arg(ctl_->currentFrame() + 1);
-    const auto& amp = ctl_->tgcAmplitude();
-    if (ctl_->amplitudeReference() && amp.size() == db.size()) {
-        // dB of the TCG-corrected envelope re the case reference; the reporting level is re the reference too.
+    const auto& curve = ctl_->curve();
+    double from_m = 0, to_m = 0;  // depths the curve's points cover
+    bool covered = false;
+    if (curve)
+        if (const auto r = core::depthRange(*curve)) covered = true, from_m = r->first, to_m = r->second;
+    re_curve_->setVisible(covered);
+    plot_->setToolTip(ctl_->curveWarning());
+    if (curve && covered) {
+        // dB of the envelope (on the curve's basis) re the curve at each depth, or re the curve's
+        // shallowest point with the curve drawn as its line; the reporting level is re the curve.
+        const bool re = re_curve_->isChecked();
+        const double l0 = core::dacLevel(*curve, from_m)->level_db;
+        TracePlot::CurveOverlay ov;
+        ov.covered_from_mm = from_m * 1e3;
+        ov.covered_to_mm = to_m * 1e3;
+        ov.level_follows_curve = !re;
         float top = -1e30f;
         for (size_t iz = 0; iz < f->nz(); ++iz) {
             z[iz] = f->z_m[iz] * 1e3;
-            const auto r = ctl_->dbReReference(amp[iz * f->nx() + static_cast<size_t>(ix)]);
-            col[iz] = r ? static_cast<float>(*r) : -1e3f;
+            const auto r = ctl_->dbReCurveAt(static_cast<size_t>(ix), iz);
+            const double shift = re ? 0.0 : core::dacLevel(*curve, f->z_m[iz])->level_db - l0;
+            col[iz] = r ? static_cast<float>(r->db + shift) : -1e3f;
             top = std::max(top, col[iz]);
+            ov.depth_mm.push_back(z[iz]);
+            ov.db.push_back(static_cast<float>(shift));
         }
         const double t = std::max(0.0, std::ceil(std::max<double>(top, level_->value()) / 6.0) * 6.0);
-        plot_->setTrace(std::move(z), std::move(col), t - ctl_->dynamicRangeDb(), level_->value(), depth_mm_, title, t,
-                        ctl_->amplitudeUnit());
-        if (!ctl_->referenceWarning().isEmpty()) plot_->setToolTip(ctl_->referenceWarning());
+        const QString unit = re ? ctl_->amplitudeUnit()
+                                : tr("dB re DAC at %1 mm (%2)").arg(from_m * 1e3, 0, 'f', 1).arg(QString::fromStdString(curve->label));
+        plot_->setTrace(std::move(z), std::move(col), t - ctl_->dynamicRangeDb(), level_->value(), depth_mm_, title, t, unit);
+        plot_->setCurve(std::move(ov));
         return;
     }
+    plot_->setCurve({});
     for (size_t iz = 0; iz < f->nz(); ++iz) {
         z[iz] = f->z_m[iz] * 1e3;
         col[iz] = db[iz * f->nx() + static_cast<size_t>(ix)];

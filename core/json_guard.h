@@ -1,0 +1,22 @@
+// SPDX-License-Identifier: MIT
+#pragma once
+// A check of JSON text before it is parsed into a tree (RFC 8259 grammar): syntax errors are
+// reported in plain words with line and column, numbers that do not fit a double (1e999) name
+// their key, and nesting depth and value count are bounded before any recursive parser or
+// allocation sees the text. Used for every JSON file Umbra reads (scenes, recipes, case files).
+#include <cstddef>
+#include <string>
+
+namespace umbra::core {
+
+struct JsonLimits {
+    size_t max_depth = 256;        ///< deepest nesting of arrays and objects
+    size_t max_values = 4'000'000;  ///< values of any kind (strings, numbers, ...) in the whole text
+};
+
+/// Throws InputError(file, key path, problem) unless `text` is one JSON value within the limits,
+/// e.g. "reflectors.points[3].amplitude: number 1e999 is out of range". The key path uses
+/// "a.b[2].c" (empty at the root). Grammar errors read "not valid JSON: <what> (line L, column C)".
+void checkJsonText(const std::string& text, const std::string& file, const JsonLimits& limits = {});
+
+}  // namespace umbra::core
