@@ -402,7 +402,7 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
     try {
         j = json::parse(text);
     } catch (const json::parse_error& e) {
-        r.fail("", std::string("not valid JSON: ") + e.what());
+        r.fail("", "not valid JSON at " + plainParseMessage(e.what()));
     }
     r.object(j, "");
     const std::string format = r.text(j, "", "format", true);

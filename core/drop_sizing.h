@@ -1,6 +1,6 @@
 // SPDX-License-Identifier: MIT
 #pragma once
-// −6 dB drop sizing (common practice, check-values row 20): inside a box the user drew around an
+// −6 dB drop sizing (ultrasonic testing practice; common practice): inside a box the user drew around an
 // indication, find the peak of the linear amplitude (envelope), then walk along the row and the
 // column through the peak until the amplitude falls below `ratio` × peak (0.5 = −6.02 dB). Each
 // edge lies between the last pixel at or above the level and the first one below it, placed by

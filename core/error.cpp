@@ -22,4 +22,15 @@ InputError::InputError(std::string file, std::vector<Problem> problems)
 InputError::InputError(std::string file, std::string where, std::string what)
     : InputError(std::move(file), std::vector<Problem>{{std::move(where), std::move(what)}}) {}
 
+std::string plainParseMessage(const std::string& m) {
+    std::string out = m;
+    if (out.size() > 1 && out[0] == '[') {
+        const auto close = out.find("] ");
+        if (close != std::string::npos) out = out.substr(close + 2);
+    }
+    for (const char* lead : {"parse error at ", "parse error: "})
+        if (out.rfind(lead, 0) == 0) out = out.substr(std::string(lead).size());
+    return out;
+}
+
 }  // namespace umbra::core

@@ -33,6 +33,10 @@ public:
     using std::runtime_error::runtime_error;
 };
 
+/// A parser library's message without its internal tag: "[json.exception.parse_error.101] parse
+/// error at line 1, column 2: ..." becomes "line 1, column 2: ...". Other text is returned as is.
+std::string plainParseMessage(const std::string& library_message);
+
 /// Raised by long operations when the caller's cancel callback asked to stop.
 class Cancelled : public std::runtime_error {
 public:

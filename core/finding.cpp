@@ -60,7 +60,7 @@ bool isJudgement(const std::string& w) {
 bool Indication::isDescribed() const { return !blank(description) && !blank(location); }
 
 bool Finding::evaluationUnlocked() const {
-    return interpretationUnlocked() && interpretation == Interpretation::Relevant;
+    return interpretationUnlocked() && interpretation == Interpretation::Relevant && !blank(interpretation_reason);
 }
 
 bool Finding::evaluationApplicable() const {
@@ -80,8 +80,19 @@ std::string Finding::evaluationLockReason() const {
     if (!interpretationUnlocked())
         return "Locked: describe the indication, then interpret it, before evaluating.";
     if (interpretation == Interpretation::Unset) return "Locked: interpret the indication first.";
+    if (interpretation == Interpretation::Relevant)
+        return "Locked: give the reason for the interpretation first (what shows that it is relevant).";
     return "Not applicable: only relevant indications are evaluated (this one is " +
            interpretationLabel(interpretation) + ").";
+}
+
+std::vector<std::string> hedgingWordsInReason(const std::string& text) {
+    static const std::vector<std::string> interpretive = {"consistent with", "compatible with", "suggestive of", "suggests",
+                                                          "suggesting"};
+    std::vector<std::string> out;
+    for (auto& w : hedgingWords(text))
+        if (std::find(interpretive.begin(), interpretive.end(), w) == interpretive.end()) out.push_back(w);
+    return out;
 }
 
 std::vector<std::string> hedgingWords(const std::string& text) {

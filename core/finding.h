@@ -49,7 +49,7 @@ struct Finding {
     std::string criterion;  ///< the acceptance criterion used (code, clause, limit)
 
     bool interpretationUnlocked() const { return indication.isDescribed(); }
-    /// Indication described AND interpreted as relevant.
+    /// Indication described AND interpreted as relevant AND a reason given for that interpretation.
     bool evaluationUnlocked() const;
     /// False for false / non-relevant indications (evaluation not applicable to them).
     bool evaluationApplicable() const;
@@ -65,6 +65,10 @@ struct Finding {
 /// "suggestive of", "consistent with", "appears to be", "presumably", "significant", ...
 /// Whole words only ("impossible" is not "possible").
 std::vector<std::string> hedgingWords(const std::string& text);
+/// Hedges in an interpretation's reason: as hedgingWords, except the phrases that state an
+/// interpretation and so belong in a reason ("consistent with", "compatible with", "suggestive
+/// of", "suggests", "suggesting").
+std::vector<std::string> hedgingWordsInReason(const std::string& text);
 /// A quiet note for the user, e.g. "Describe what is seen: 'possible' is a hedge." (empty if none).
 std::string hedgingNote(const std::vector<std::string>& words);
 

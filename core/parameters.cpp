@@ -176,7 +176,7 @@ void Recipe::mergeJson(const std::string& text, const std::string& source) {
     } catch (const InputError& e) {
         throw SettingError(e.what());
     } catch (const std::exception& e) {
-        throw SettingError(source + ": not valid JSON: " + e.what());
+        throw SettingError(source + ": not valid JSON at " + plainParseMessage(e.what()));
     }
     if (!j.is_object()) throw SettingError(source + ": a recipe is a JSON object of stages");
     Recipe next = *this;

@@ -15,13 +15,13 @@ core::StageSpec gridSpec() {
             "Region and pixel step of the image; 0/0 = automatic region, step 0 = automatic (worst-case point loss within the "
             "amplitude fidelity target).",
             {modalRealParam("x_min_mm", "x min", "Left edge of the region, mm (x_min = x_max = 0: the array's aperture).", u, -10000,
-                            10000, "automatic if x max is 0 too", 1),
-             modalRealParam("x_max_mm", "x max", "Right edge of the region, mm.", u, -10000, 10000, "automatic if x min is 0 too", 1),
+                            10000, "automatic", 1),
+             modalRealParam("x_max_mm", "x max", "Right edge of the region, mm (x_min = x_max = 0: the array's aperture).", u, -10000, 10000, "automatic", 1),
              modalRealParam("z_min_mm", "z min",
                             "Top of the region (depth), mm (z_min = z_max = 0: from 0 to the recorded depth, or to 1.15 x the "
                             "medium's thickness when that is recorded and shorter).",
-                            u, -10000, 10000, "automatic if z max is 0 too", 1),
-             modalRealParam("z_max_mm", "z max", "Bottom of the region (depth), mm.", u, -10000, 10000, "automatic if z min is 0 too", 1),
+                            u, -10000, 10000, "automatic", 1),
+             modalRealParam("z_max_mm", "z max", "Bottom of the region (depth), mm (z_min = z_max = 0: automatic, see z min).", u, -10000, 10000, "automatic", 1),
              modalRealParam("step_mm", "Pixel step", "Pixel size, mm; 0 = automatic (worst-case point loss within the fidelity target).", u,
                             0, 1000, "automatic", 0.01),
              realParam("max_loss_db", "Amplitude fidelity target",

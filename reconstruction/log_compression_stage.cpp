@@ -18,8 +18,8 @@ core::StageSpec logCompressionSpec() {
                        true, 1),
              choiceParam("reference", "Reference", "0 dB is the image peak (peak) or a fixed amplitude (user).", {"peak", "user"},
                          "peak", true),
-             realParam("reference_amplitude", "Reference amplitude", "Linear amplitude, in capture units, shown as 0 dB when the reference is user.",
-                       "", 1e-30, 1e30, 1.0, true)}};
+             realParam("reference_amplitude", "Reference amplitude", "Linear amplitude, in the capture's RF units, shown as 0 dB when the reference is user.",
+                       "RF units", 1e-30, 1e30, 1.0, true)}};
 }
 
 LogCompressionParams logCompressionParams(const core::Recipe& r) {

@@ -159,11 +159,21 @@ double Timings::termsPerSecond() const {
 
 // ------------------------------------------------------------------- display chain
 
+TgcInputs resolvedTgcInputs(const core::CaptureHeader& h, const core::Recipe& r) {
+    const TgcParams p = tgcParams(r);
+    TgcInputs t;
+    t.attenuation_from_capture = !(p.attenuation_db_per_cm_mhz > 0);
+    t.attenuation_recorded = h.medium.attenuation_db_per_cm_mhz.has_value();
+    t.attenuation_db_per_cm_mhz = t.attenuation_from_capture ? h.medium.attenuation_db_per_cm_mhz.value_or(0.0) : p.attenuation_db_per_cm_mhz;
+    t.frequency_from_capture = !(p.frequency_mhz > 0);
+    t.frequency_mhz = t.frequency_from_capture ? h.array.centre_frequency_hz / 1e6 : p.frequency_mhz;
+    return t;
+}
+
 std::vector<float> tgcGain(const core::CaptureHeader& h, const core::Recipe& r, const std::vector<double>& z_m) {
     const TgcParams p = tgcParams(r);
-    const double alpha = p.attenuation_db_per_cm_mhz > 0 ? p.attenuation_db_per_cm_mhz : h.medium.attenuation_db_per_cm_mhz.value_or(0.0);
-    const double f = p.frequency_mhz > 0 ? p.frequency_mhz : h.array.centre_frequency_hz / 1e6;
-    auto db = tgcGainDb(p, alpha, f, z_m);
+    const TgcInputs in = resolvedTgcInputs(h, r);
+    auto db = tgcGainDb(p, in.attenuation_db_per_cm_mhz, in.frequency_mhz, z_m);
     std::vector<float> g(db.size());
     for (size_t i = 0; i < db.size(); ++i) g[i] = float(std::pow(10.0, db[i] / 20));
     return g;

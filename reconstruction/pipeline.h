@@ -91,6 +91,18 @@ private:
 // ------------------------------------------------------------------- display chain
 // Display-only: these re-map a stored linear envelope and never re-run delay-and-sum.
 
+/// The attenuation and frequency the attenuation TCG uses, and where each comes from: the
+/// recipe's value, or (recipe value 0) the capture's medium attenuation / array centre
+/// frequency. `attenuation_recorded` is false when the capture records no attenuation (then 0).
+struct TgcInputs {
+    double attenuation_db_per_cm_mhz = 0;  ///< one-way alpha, dB/cm/MHz
+    double frequency_mhz = 0;              ///< f, MHz
+    bool attenuation_from_capture = false;
+    bool attenuation_recorded = false;
+    bool frequency_from_capture = false;
+};
+TgcInputs resolvedTgcInputs(const core::CaptureHeader& h, const core::Recipe& r);
+
 /// Time-gain compensation gain (linear amplitude factor) per depth row z_m, from the recipe
 /// (medium attenuation, round trip, or a user curve of dB versus depth points).
 std::vector<float> tgcGain(const core::CaptureHeader& h, const core::Recipe& r, const std::vector<double>& z_m);

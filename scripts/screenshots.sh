@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # SPDX-License-Identifier: MIT
-# Renders screenshots of the workstation on the demo captures under Xvfb. Builds nothing.
+# Renders screenshots of the workstation on the demo cases under Xvfb, at the default window size
+# (1480 x 920). Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
 # `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,dac}.png.
@@ -32,10 +33,10 @@ ref=()
 [ -f "$samples/reference_block.h5" ] && ref=(--demo-reference)
 run --demo "$samples" --frame 10 "${weld_set[@]}" "${ref[@]}" --demo-annotate \
     --screenshot "$out/weld.png" --export "$out/weld-export.png" --timings --timeout 240
-# Phantom P-2 on its own (no weld case text), an ellipse on the 6 mm anechoic cyst at (-8, 25) mm
-# (position from samples/phantom_p2.json) and a finding from it.
+# The Phantom P-2 demo case (its own case: no weld case text), an ellipse on the 6 mm anechoic
+# cyst at (-8, 25) mm (position from samples/phantom_p2.json) and a finding from it.
 if [ -f "$samples/phantom_p2.h5" ]; then
-  run "$samples/phantom_p2.h5" --demo-ellipse=-8,25,3.2,3.2 --screenshot "$out/phantom.png" --timings --timeout 240
+  run --demo "$samples" --demo-case phantom --demo-ellipse=-8,25,3.2,3.2 --screenshot "$out/phantom.png" --timings --timeout 240
 else
   echo "screenshots: $samples/phantom_p2.h5 missing; phantom screenshot skipped" >&2
 fi

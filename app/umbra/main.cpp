@@ -2,7 +2,9 @@
 // umbra — the workstation. Thin: parses the command line, shows the main window.
 //
 //   umbra [CAPTURE.h5 | CASE.umbracase]
-//   umbra --demo DIR                      weld coupon (+ Phantom P-2 as a second capture) from DIR
+//   umbra --demo DIR [--demo-case NAME]    a demo case from DIR: weld (default: weld coupon with its
+//                                         reference block) or phantom (Phantom P-2); File → Demo cases
+//                                         offers the other
 //   umbra ... --timings [--set stage.param=value ...]   print display re-render and beamforming times
 //   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference [--demo-tcg]] [--capture N] [--export FILE]
 #include <QApplication>
@@ -30,7 +32,11 @@ int main(int argc, char** argv) {
     cl.addHelpOption();
     cl.addVersionOption();
     cl.addPositionalArgument("file", "A capture (.h5) or a case (.umbracase) to open.", "[CAPTURE.h5 | CASE.umbracase]");
-    QCommandLineOption demo("demo", "Open the demo captures from DIR (weld_coupon.h5, phantom_p2.h5).", "DIR");
+    QCommandLineOption demo("demo",
+                            "Open a demo case from DIR: by default the weld (weld_coupon.h5 with reference_block.h5); "
+                            "File > Demo cases offers the others.",
+                            "DIR");
+    QCommandLineOption demoCase("demo-case", "With --demo: which demo case, weld or phantom.", "NAME", "weld");
     QCommandLineOption timings("timings", "Print display re-render and beamforming times to stderr.");
     QCommandLineOption shot("screenshot", "Wait for the image, grab the window to FILE (PNG) and quit.", "FILE");
     QCommandLineOption annotate("demo-annotate", "Place a demonstration -6 dB sizing, caliper and finding.");
@@ -47,7 +53,7 @@ int main(int argc, char** argv) {
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
+    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -58,11 +64,10 @@ int main(int argc, char** argv) {
         opt.recovery = umbra::ui::MainWindow::Recovery::Ignore;
     }
     umbra::ui::MainWindow w(opt);
-    if (screenshot) w.resize(1600, 1000);
-    w.show();
+    w.show();  // screenshots at the default window size
 
     bool ok = true;
-    if (cl.isSet(demo)) ok = w.openDemo(cl.value(demo));
+    if (cl.isSet(demo)) ok = w.openDemoCase(cl.value(demo), cl.value(demoCase));
     else if (!cl.positionalArguments().isEmpty()) ok = w.openPath(cl.positionalArguments().front());
     else if (!screenshot && QFileInfo::exists(umbra::ui::CaseController::untitledAutosavePath()) &&
              QMessageBox::question(&w, QObject::tr("Recover unsaved work?"),
@@ -87,6 +92,7 @@ int main(int argc, char** argv) {
         umbra::core::Recipe r = ctl->recipe();
         try {
             for (const QString& a : sets) r.applyAssignment(a.toStdString());
+            ctl->checkRecipe(r);  // e.g. a grid over the pixel limit: refused before it applies
         } catch (const std::exception& e) {
             std::fprintf(stderr, "umbra: %s\n", e.what());
             return false;

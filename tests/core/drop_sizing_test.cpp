@@ -1,7 +1,7 @@
 // SPDX-License-Identifier: MIT
 // −6 dB drop sizing against analytic widths.
-//  * Gaussian blob A·exp(−x²/2σx² − z²/2σz²): the amplitude is 0.5·peak (−6.02 dB; check-values
-//    row 20, common practice) at x = σ·sqrt(2 ln 2), so the −6 dB full width is 2·sqrt(2 ln 2)·σ
+//  * Gaussian blob A·exp(−x²/2σx² − z²/2σz²): the amplitude is 0.5·peak (−6.02 dB; ultrasonic
+//    testing practice, common practice) at x = σ·sqrt(2 ln 2), so the −6 dB full width is 2·sqrt(2 ln 2)·σ
 //    (= the FWHM of the Gaussian, since the image holds amplitude, not power).
 //  * A rectangular plateau of value 1 over n pixels on a zero background: the level 0.5 lies
 //    half-way between the last pixel of the plateau and the first outside, so the width is n

@@ -45,6 +45,11 @@ TEST(finding_test, evaluation_only_for_relevant_indications) {
     EXPECT_FALSE(f.evaluationUnlocked());
     EXPECT_FALSE(f.evaluationApplicable());
     f.interpretation = Interpretation::Relevant;
+    EXPECT_FALSE(f.evaluationUnlocked());  // an interpretation without a reason is not complete
+    EXPECT_NE(f.evaluationLockReason().find("reason"), std::string::npos);
+    f.interpretation_reason = "  ";
+    EXPECT_FALSE(f.evaluationUnlocked());  // blank does not count
+    f.interpretation_reason = "echo from both sides of the weld";
     EXPECT_TRUE(f.evaluationUnlocked());
     EXPECT_TRUE(f.evaluationApplicable());
     EXPECT_TRUE(f.evaluationLockReason().empty());
@@ -56,7 +61,7 @@ TEST(finding_test, evaluation_only_for_relevant_indications) {
     EXPECT_EQ(f.evaluation, Evaluation::Rejectable);
 }
 
-// Descriptive reporting avoids hedges (common practice; listed in the project's field guide).
+// Descriptive reporting avoids hedges (common practice, no single published source).
 TEST(finding_test, hedging_words_are_flagged_in_order) {
     EXPECT_EQ(hedgingWords("Possible crack, likely lack of fusion; porosity cannot be excluded."),
               (std::vector<std::string>{"possible", "likely", "cannot be excluded"}));
@@ -77,6 +82,15 @@ TEST(finding_test, plain_description_is_not_flagged) {
     EXPECT_TRUE(hedgingWords("").empty());
     EXPECT_TRUE(hedgingWords("Linear indication, 6 mm long, at the root, 14 dB above the reference.").empty());
     EXPECT_TRUE(hedgingWords("Insignia; possiblex").empty());
+}
+
+// In an interpretation's reason, the phrases that state an interpretation ("consistent with",
+// "suggestive of") are its business; real hedges ("probably", "possible") are still flagged
+// (common practice of descriptive reporting, no single published source).
+TEST(finding_test, reason_hedges_leave_interpretive_phrases_alone) {
+    EXPECT_TRUE(hedgingWordsInReason("Consistent with lack of fusion: echo from both sides, suggestive of a planar face.").empty());
+    EXPECT_EQ(hedgingWordsInReason("Probably lack of fusion, consistent with the bevel angle; possible slag."),
+              (std::vector<std::string>{"probably", "possible"}));
 }
 
 TEST(finding_test, hedging_note_names_the_words) {

@@ -144,7 +144,10 @@ TEST(Recipe, MergeJsonIsAllOrNothingAndNamesSourceAndKey) {
     EXPECT_NE(msg.find("weld.recipe.json"), std::string::npos) << msg;
     EXPECT_NE(msg.find("'das.f_number'"), std::string::npos) << msg;
     EXPECT_EQ(r.integer("das.taps"), 31) << "partial merge applied";
-    EXPECT_NE(settingErrorOf([&] { r.mergeJson("{not json", "x.json"); }).find("x.json: not valid JSON"), std::string::npos);
+    const std::string bad_json = settingErrorOf([&] { r.mergeJson("{not json", "x.json"); });
+    EXPECT_NE(bad_json.find("x.json: not valid JSON"), std::string::npos) << bad_json;
+    EXPECT_NE(bad_json.find("line 1, column"), std::string::npos) << "the position is named: " << bad_json;
+    EXPECT_EQ(bad_json.find("[json.exception"), std::string::npos) << "the parser's internal tag is not for users: " << bad_json;
     EXPECT_NE(settingErrorOf([&] { r.mergeJson("[1,2]", "x.json"); }).find("x.json"), std::string::npos);
     EXPECT_NE(settingErrorOf([&] { r.mergeJson(R"({"das": 3})", "x.json"); }).find("'das'"), std::string::npos);
     EXPECT_NE(settingErrorOf([&] { r.mergeJson(R"({"das": {"taps": [1]}})", "x.json"); }).find("'das.taps'"), std::string::npos);

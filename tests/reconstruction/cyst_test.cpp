@@ -1,6 +1,6 @@
 // SPDX-License-Identifier: MIT
-// Anechoic cyst in a speckle phantom: contrast (check-values row 28), CNR (row 29, Patterson &
-// Foster 1983) and generalized CNR (row 30, Rodriguez-Molares et al., IEEE TUFFC 67(4), 2020)
+// Anechoic cyst in a speckle phantom: contrast (CR = 20 log10 of the mean ratio, a definition;
+// from memory), CNR (Patterson & Foster, Ultrasonic Imaging 5, 1983) and generalized CNR (Rodriguez-Molares et al., IEEE TUFFC 67(4), 2020)
 // improve when more plane-wave angles are compounded (Montaldo et al., IEEE TUFFC 56(3), 2009).
 #include <gtest/gtest.h>
 
@@ -104,6 +104,7 @@ TEST(cyst_test, contrast_and_gcnr_improve_with_more_plane_wave_angles) {
     EXPECT_LT(m9.contrast_db, m1.contrast_db - 1);
     EXPECT_GT(m9.gcnr, m1.gcnr + 0.01);
     // CNR is reported, not required to grow: for a dark cyst it saturates near the speckle
-    // limit mean/std = 1.91 (Rayleigh statistics, check-values row 27).
+    // limit mean/std = 1.91 (Rayleigh statistics; Burckhardt 1978; Wagner et al., IEEE Trans.
+    // Sonics Ultrason. 30(3), 1983).
     EXPECT_GT(m9.cnr, 1.0);
 }

@@ -12,7 +12,7 @@
 
 using namespace umbra;
 
-// check-values row 6: round-trip TCG gain 2 alpha f z dB (alpha one way, dB/cm/MHz).
+// Common practice (convention, no single source): round-trip TCG gain 2 alpha f z dB (alpha one way, dB/cm/MHz).
 // 0.5 dB/cm/MHz, 5 MHz, 4 cm -> 20 dB.
 TEST(display_test, tgc_gain_is_round_trip_attenuation) {
     testutil::SynthSpec s;

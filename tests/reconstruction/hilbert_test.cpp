@@ -15,7 +15,7 @@
 
 using namespace umbra;
 
-// check-values row 25: exp(-t^2/2 sigma^2) cos(2 pi f0 t) has analytic envelope
+// Hilbert transform and Bedrosian theorem (derived): exp(-t^2/2 sigma^2) cos(2 pi f0 t) has analytic envelope
 // exp(-t^2/2 sigma^2) within 1e-4 for fractional bandwidth <= 0.6 (Bedrosian theorem).
 TEST(hilbert_test, gaussian_pulse_envelope_matches_bedrosian) {
     const double f0 = 5e6, fs = 50e6, B = 0.6, sig = testutil::sigmaFor(f0, B);

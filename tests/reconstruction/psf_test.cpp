@@ -56,9 +56,9 @@ core::Frame reconstruct(const std::string& path, core::Recipe r) {
 }  // namespace
 
 // TFM with transmit and receive apertures both set by the f-number (uniform apodization):
-// two-way aperture, lateral -6 dB width 0.8859 lambda F# (check-values row 11: sinc^2 root,
-// Szabo, Diagnostic Ultrasound Imaging, arrays chapter); axial -6 dB width c T/2 with
-// T = 4 ln2 / (pi B f0) (rows 12, 26); peak within lambda/10 of the true position.
+// two-way aperture, lateral -6 dB width 0.8859 lambda F# (root of sinc^2 for a uniform
+// aperture; Szabo, Diagnostic Ultrasound Imaging: Inside Out, arrays chapter, from memory); axial -6 dB
+// width c T/2 (common practice) with T = 4 ln2 / (pi B f0) (derived from the Gaussian Fourier pair); peak within lambda/10 of the true position.
 TEST(psf_test, tfm_point_position_lateral_and_axial_widths) {
     testutil::SynthSpec s;  // 64 elements, 0.15 mm pitch, 5 MHz, B 0.6, 1540 m/s, 40 MHz
     const double x0 = 0.21e-3, z0 = 12.0e-3;
@@ -89,7 +89,7 @@ TEST(psf_test, tfm_point_position_lateral_and_axial_widths) {
 }
 
 // A single 0 degree plane wave focuses on receive only: one-way aperture, lateral -6 dB width
-// 1.2067 lambda F# (check-values row 11, one-way sinc root).
+// 1.2067 lambda F# (derived: root of the one-way sinc pattern of a uniform aperture).
 TEST(psf_test, plane_wave_single_angle_lateral_width_is_one_way) {
     testutil::SynthSpec s;
     s.kind = core::TransmitKind::PlaneWave;
@@ -114,7 +114,9 @@ TEST(psf_test, plane_wave_single_angle_lateral_width_is_one_way) {
     EXPECT_NEAR(lat / (1.2067 * lambda * F), 1.0, 0.15) << "lateral " << lat * 1e3 << " mm";
 }
 
-// Amplitude fidelity (check-values rows 16-17: <= 2 dB; about lambda/3.3 on an envelope image).
+// Amplitude fidelity: <= 2 dB (ASME BPVC Section V, Article 4, TFM appendix, and ISO 23865; clause
+// numbers from memory); a grid of about lambda/3.3 on an envelope image (published TFM
+// amplitude-fidelity analyses; empirical).
 // The automatic step with the default target (grid.max_loss_db = 1 dB) keeps the reported
 // worst-case loss within the target and so well within 2 dB, is finer than lambda/3.3 (which the
 // 2 dB limit alone allows), and the Gaussian model does not under-state the loss a beamformed
@@ -154,7 +156,7 @@ TEST(psf_test, default_grid_keeps_amplitude_fidelity_within_2db) {
 // chosen step is at (just under) the target, the step scales as sqrt(target minus the
 // interpolation loss) (Gaussian model: loss proportional to step^2), and the loss a beamformed point shows at a half-pixel offset in
 // both axes grows with the target, stays within the target + 0.25 dB and within the 2 dB limit
-// (check-values row 16).
+// (ASME BPVC Section V, Article 4, TFM appendix; ISO 23865; clause numbers from memory).
 TEST(psf_test, achieved_loss_tracks_the_fidelity_target) {
     testutil::SynthSpec s;
     const auto h = testutil::makeHeader(s);

@@ -3,7 +3,7 @@
 // Test helpers: synthetic captures of analytic point echoes, written to a temporary file.
 // Echo of each path: A exp(-t^2 / 2 sigma^2) cos(2 pi f0 t) delayed by the path time, with
 // sigma = sqrt(2 ln 2) / (pi B f0) so that B is the -6 dB fractional bandwidth of the echo
-// (Gaussian Fourier pair; check-values row 26).
+// (derived from the Gaussian Fourier pair: T(-6 dB) = 4 ln2 / (pi B f0)).
 #include <unistd.h>
 
 #include <cmath>

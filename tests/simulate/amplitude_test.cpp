@@ -40,7 +40,7 @@ TEST(amplitude_test, directivity_matches_soft_baffled_strip_at_several_angles) {
     }
 }
 
-// Check-values row 6 (convention): alpha in dB/cm/MHz one way; a round trip to depth z loses
+// Common practice (convention): alpha in dB/cm/MHz one way; a round trip to depth z loses
 // 2 alpha f0 z dB. 0.5 dB/cm/MHz, 5 MHz, z = 30 mm -> 15 dB -> amplitude ratio 0.1778.
 TEST(amplitude_test, attenuation_reduces_amplitude_by_stated_db_per_cm_per_mhz) {
     auto j = baseScene();

@@ -1,6 +1,6 @@
 // SPDX-License-Identifier: MIT
 // The simulated pulse: -6 dB bandwidth, -6 dB duration and envelope against the analytic
-// Gaussian (check-values rows 25 and 26).
+// Gaussian (derived: Gaussian Fourier pair; Hilbert transform and Bedrosian theorem).
 #include <gtest/gtest.h>
 
 #include "reconstruction/simulate/pulse.h"
@@ -42,8 +42,7 @@ double measuredFractionalBandwidth(const float* x, size_t n, double fs) {
 }
 }  // namespace
 
-// Derived from the Gaussian Fourier pair: T(-6 dB) = 4 ln2 / (pi B f0); 5 MHz, B 0.6 -> 0.294 us
-// (check-values row 26).
+// Derived from the Gaussian Fourier pair: T(-6 dB) = 4 ln2 / (pi B f0); 5 MHz, B 0.6 -> 0.294 us.
 TEST(pulse_test, minus6db_duration_matches_gaussian_fourier_pair) {
     GaussianPulse p(5e6, 0.6);
     const double t6 = 2 * p.sigma() * std::sqrt(2 * std::log(2.0));
@@ -63,7 +62,7 @@ TEST(pulse_test, simulated_minus6db_bandwidth_matches_request_within_5_percent) 
     }
 }
 
-// Check-values row 25 (Hilbert transform / Bedrosian): the analytic envelope of
+// Derived (Hilbert transform and Bedrosian theorem): the analytic envelope of
 // exp(-t^2/2s^2) cos(2 pi f0 t) is the Gaussian within 1e-4 of the peak for B <= 0.6, about
 // 1 % at B = 1.0. The simulated echo of a point must match A exp(-(t - tau)^2 / 2 s^2).
 TEST(pulse_test, envelope_matches_analytic_gaussian) {

@@ -2,7 +2,7 @@
 // Fully developed speckle: envelope of many random scatterers with Gaussian amplitudes is
 // Rayleigh distributed, mean/std = sqrt(pi / (4 - pi)) = 1.913, and the std of the
 // log-compressed envelope is 5.57 dB (Burckhardt 1978; Wagner et al., IEEE Trans. Sonics
-// Ultrason. 30(3), 1983; check-values row 27). Checked within 3 % over a large region.
+// Ultrason. 30(3), 1983). Checked within 3 % over a large region.
 #include <gtest/gtest.h>
 
 #include "reconstruction/simulate/scatterers.h"

@@ -98,6 +98,10 @@ TEST(findings_pane_test, evaluation_locked_until_interpreted_relevant) {
     chooseByText(cls, "non-relevant");
     EXPECT_FALSE(fields->isEnabled());
     chooseByText(cls, "relevant");
+    // An interpretation is complete with its reason: evaluation stays locked until one is given.
+    EXPECT_FALSE(fields->isEnabled());
+    EXPECT_TRUE(lock->text().contains("reason")) << lock->text().toStdString();
+    QTest::keyClicks(child<QLineEdit>(pane, "interpretationReason"), "echo from both sides of the weld");
     EXPECT_TRUE(fields->isEnabled());
     EXPECT_FALSE(lock->isVisible());
     EXPECT_EQ(pane.findings()[0].interpretation, core::Interpretation::Relevant);
@@ -186,6 +190,13 @@ TEST(findings_pane_test, hedging_word_is_flagged_quietly) {
     // The hedge does not block anything: it is advice, not a lock.
     QTest::keyClicks(child<QLineEdit>(pane, "location"), "frame 1");
     EXPECT_TRUE(child<QWidget>(pane, "interpretationFields")->isEnabled());
+    // A hedge in the interpretation's reason is pointed out as well.
+    QTest::keyClicks(child<QLineEdit>(pane, "interpretationReason"), "probably lack of fusion");
+    EXPECT_TRUE(note->isVisible());
+    EXPECT_TRUE(note->text().contains("'probably'")) << note->text().toStdString();
+    child<QLineEdit>(pane, "interpretationReason")->clear();
+    QTest::keyClicks(child<QLineEdit>(pane, "interpretationReason"), "echo from both sides of the weld");
+    EXPECT_FALSE(note->isVisible());
 }
 
 TEST(findings_pane_test, set_document_shows_it_without_reporting_an_edit) {

@@ -39,7 +39,7 @@ TEST(view_transform_test, pixel_mm_round_trip_at_several_zoom_and_pan_states) {
 }
 
 // At fit the whole extent is visible and the limiting axis fills the viewport; aspect is true
-// (one scale for both axes): 800 px / 38.4 mm = 20.83 px/mm < 600 px / 25 mm = 24 px/mm.
+// (one scale for both axes), top-aligned: 800 px / 38.4 mm = 20.83 px/mm < 600 px / 25 mm = 24 px/mm.
 TEST(view_transform_test, fit_uses_one_scale_and_shows_the_whole_image) {
     ViewTransform v = make();
     EXPECT_NEAR(v.pixelsPerMm(), 800.0 / 38.4, 1e-9);
@@ -48,7 +48,11 @@ TEST(view_transform_test, fit_uses_one_scale_and_shows_the_whole_image) {
     EXPECT_NEAR(r.height(), 25 * 800.0 / 38.4, 1e-9);
     EXPECT_NEAR(r.height() / r.width(), 25 / 38.4, 1e-12);  // true aspect ratio
     EXPECT_NEAR(r.center().x(), 450, 1e-9);
-    EXPECT_NEAR(r.center().y(), 330, 1e-9);
+    // The image's top (depth 0, the array face) at the viewport's top: no empty band above it.
+    EXPECT_NEAR(r.top(), 30, 1e-9);
+    EXPECT_TRUE(v.isFit());
+    v.zoomAbout(QPointF(300, 200), 2.0);
+    EXPECT_FALSE(v.isFit());
     // Depth increases downwards.
     EXPECT_LT(v.toPixel(QPointF(0, 5)).y(), v.toPixel(QPointF(0, 20)).y());
 }

@@ -106,11 +106,11 @@ TEST(workstation_test, recipe_panel_and_recipe_stay_in_sync) {
     EXPECT_NEAR(spin->value(), other, std::pow(10.0, -spin->decimals()));
     auto* combo = qobject_cast<QComboBox*>(w.recipePanel()->editorFor(choice_key));
     ASSERT_NE(combo, nullptr);
-    EXPECT_EQ(combo->currentText().toStdString(), choice_value);
+    EXPECT_EQ(combo->currentData().toString().toStdString(), choice_value);
     // Undo brings both back.
     ctl->undoStack()->undo();
     EXPECT_NEAR(spin->value(), target, std::pow(10.0, -spin->decimals()));
-    EXPECT_NE(combo->currentText().toStdString(), choice_value);
+    EXPECT_NE(combo->currentData().toString().toStdString(), choice_value);
 }
 
 // A display-only edit re-maps the stored envelope (no Reconstructor run, image changes);

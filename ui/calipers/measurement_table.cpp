@@ -23,6 +23,9 @@ MeasurementTable::MeasurementTable(QWidget* parent) : QTableWidget(parent) {
     horizontalHeader()->setSectionResizeMode(KindColumn, QHeaderView::ResizeToContents);
     horizontalHeader()->setSectionResizeMode(FrameColumn, QHeaderView::ResizeToContents);
     verticalHeader()->hide();
+    // Rows grow with the wrapped values instead of cutting them off.
+    verticalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
+    setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     setSelectionBehavior(QAbstractItemView::SelectRows);
     setSelectionMode(QAbstractItemView::SingleSelection);
     setEditTriggers(QAbstractItemView::DoubleClicked | QAbstractItemView::EditKeyPressed |

@@ -26,10 +26,10 @@ BeamformWorker::~BeamformWorker() {
 }
 
 void BeamformWorker::request(quint64 generation, const std::string& path, const core::Recipe& recipe, size_t frame,
-                             bool all_frames, size_t frame_count) {
+                             bool all_frames, size_t frame_count, bool resume) {
     {
         std::lock_guard lock(mutex_);
-        pending_ = Request{generation, path, recipe, frame, all_frames, frame_count};
+        pending_ = Request{generation, path, recipe, frame, all_frames, frame_count, resume};
         cancel_ = true;  // the running job re-checks whether it is still wanted
     }
     cv_.notify_all();
@@ -39,6 +39,7 @@ void BeamformWorker::cancel() {
     std::lock_guard lock(mutex_);
     pending_.reset();
     cancel_ = true;
+    stop_current_ = true;  // also when the thread is between two frames
 }
 
 void BeamformWorker::loop() {
@@ -57,9 +58,13 @@ void BeamformWorker::loop() {
             std::unique_lock lock(mutex_);
             for (;;) {
                 if (stop_) return;
+                if (stop_current_) {
+                    cancelled_cur = true;
+                    stop_current_ = false;
+                }
                 if (pending_) {
                     if (!cur || cur->generation != pending_->generation) done.clear();
-                    else done.erase(pending_->frame);  // asked again: the caller no longer has it
+                    else if (!pending_->resume) done.erase(pending_->frame);  // asked again: the caller no longer has it
                     cur = std::move(*pending_);
                     pending_.reset();
                     cancelled_cur = false;

@@ -30,9 +30,11 @@ public:
 
     /// Beamform `frame` of the capture at `path` with `recipe`; with `all_frames` go on with
     /// every other frame in the background (for the top view). A request with a new
-    /// `generation` discards everything done for older ones.
+    /// `generation` discards everything done for older ones. A request with the same generation
+    /// beamforms `frame` again (the caller no longer has it) unless `resume` (go on with the
+    /// frames not done yet, e.g. after a cancel).
     void request(quint64 generation, const std::string& path, const core::Recipe& recipe, size_t frame,
-                 bool all_frames, size_t frame_count);
+                 bool all_frames, size_t frame_count, bool resume = false);
     /// Stops the current run (the thread stays up).
     void cancel();
     /// Number of Reconstructor::run calls started so far (for tests and timings).
@@ -54,6 +56,7 @@ private:
         size_t frame = 0;
         bool all_frames = false;
         size_t frame_count = 1;
+        bool resume = false;
     };
     void loop();
 
@@ -61,6 +64,7 @@ private:
     std::condition_variable cv_;
     std::optional<Request> pending_;
     bool stop_ = false;
+    bool stop_current_ = false;  ///< cancel(): drop the current request, run or not
     std::atomic<bool> cancel_{false};
     std::atomic<long> runs_{0};
     std::thread thread_;

@@ -14,7 +14,9 @@
 
 #include "core/drop_sizing.h"
 #include "core/error.h"
+#include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
+#include "reconstruction/tgc_stage.h"
 #include "ui/controller/value_command.h"
 
 namespace umbra::ui {
@@ -34,19 +36,25 @@ CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new B
     connect(worker_, &BeamformWorker::frameReady, this, &CaseController::onFrameReady);
     connect(worker_, &BeamformWorker::progress, this,
             [this](quint64 gen, qulonglong frame, double f, bool background) {
-                if (gen != generation_) return;
+                // Reports queued before a cancel arrive after it: nothing is running any more.
+                if (gen != generation_ || (!busy_ && !top_running_)) return;
                 emit progressChanged(f, background ? tr("Beamforming frame %1 for the top view").arg(frame + 1)
                                                    : tr("Beamforming frame %1").arg(frame + 1));
             });
     connect(worker_, &BeamformWorker::failed, this, [this](quint64 gen, const QString& msg) {
         if (gen != generation_) return;
         setBusy(false);
+        stopTopViewRun();
         emit errorOccurred(tr("Reconstruction failed: %1").arg(msg));
     });
     connect(worker_, &BeamformWorker::cancelled, this, [this](quint64 gen) {
         if (gen != generation_) return;
         setBusy(false);
+        stopTopViewRun();
         emit statusMessage(tr("Reconstruction cancelled"));
+    });
+    connect(worker_, &BeamformWorker::allFramesDone, this, [this](quint64 gen) {
+        if (gen == generation_) stopTopViewRun();
     });
     connect(&undo_, &QUndoStack::cleanChanged, this, [this](bool) { emit dirtyChanged(isDirty()); });
 }
@@ -74,6 +82,7 @@ void CaseController::resetState() {
     selected_.clear();
     fidelity_db_ = 0;
     setBusy(false);
+    stopTopViewRun();
 }
 
 void CaseController::newCase() {
@@ -200,8 +209,20 @@ void CaseController::setActiveCapture(size_t index) {
     if (index >= doc_.captures.size()) return;
     storeActiveState();
     doc_.active_capture = index;
-    undo_.clear();  // commands refer to the capture they were made on
     openActiveCapture();
+}
+
+void CaseController::ensureActiveCapture(size_t index) {
+    if (index != doc_.active_capture && index < doc_.captures.size()) setActiveCapture(index);
+}
+
+template <typename T>
+std::function<void(const T&)> CaseController::onThisCapture(std::function<void(const T&)> set) {
+    const size_t index = doc_.active_capture;
+    return [this, index, set = std::move(set)](const T& v) {
+        ensureActiveCapture(index);
+        set(v);
+    };
 }
 
 void CaseController::saveCase(const QString& path) {
@@ -336,17 +357,30 @@ std::vector<float> CaseController::rfTrace(size_t transmit, size_t receive) cons
 
 // ---------------------------------------------------------------------------------- recipe
 
+void CaseController::checkRecipe(const core::Recipe& r) const {
+    if (!reader_) return;
+    const auto& h = reader_->header();
+    recon::resolveGrid(h, r);  // region, step, pixel limit, speed of sound, f-number
+    recon::tgcGain(h, r, {0.0});  // TCG mode and curve
+}
+
 void CaseController::editRecipeValue(const std::string& key, const std::string& value) {
     core::Recipe next = recipe_;
     next.set(key, value);  // throws SettingError
     if (next == recipe_) return;
+    checkRecipe(next);  // throws SettingError: the recipe stays as it was
     const core::ParamSpec spec = recipe_.spec(key);
     const QString what = tr("Set %1 to %2").arg(QString::fromStdString(spec.label), QString::fromStdString(next.valueText(key)));
-    undo_.push(new RecipeEditCommand(what, recipe_, next, [this](const core::Recipe& v) { applyRecipe(v); }, key));
+    // Spin-box steps on one value of one capture merge into one undo entry.
+    const std::string merge_key = std::to_string(doc_.active_capture) + ":" + key;
+    undo_.push(new RecipeEditCommand(what, recipe_, next,
+                                     onThisCapture<core::Recipe>([this](const core::Recipe& v) { applyRecipe(v); }), merge_key));
 }
 
 void CaseController::editRecipe(const core::Recipe& r, const QString& what) {
-    undo_.push(new RecipeEditCommand(what, recipe_, r, [this](const core::Recipe& v) { applyRecipe(v); }));
+    if (r == recipe_) return;
+    checkRecipe(r);
+    undo_.push(new RecipeEditCommand(what, recipe_, r, onThisCapture<core::Recipe>([this](const core::Recipe& v) { applyRecipe(v); })));
 }
 
 void CaseController::applyRecipe(const core::Recipe& r) {
@@ -413,12 +447,33 @@ void CaseController::requestBeamform() {
     if (!reader_) return;
     setBusy(true);
     const bool all = topViewFits();
+    top_running_ = all && cache_.size() < frameCount();
     worker_->request(generation_, reader_->path(), recipe_, frame_, all, frameCount());
 }
 
 void CaseController::cancelReconstruction() {
     worker_->cancel();
     setBusy(false);
+    stopTopViewRun();
+}
+
+void CaseController::stopTopViewRun() {
+    const bool was = top_running_;
+    top_running_ = false;
+    emit progressStopped();
+    if (was) emit topViewChanged();
+}
+
+bool CaseController::topViewIncomplete() const {
+    return reader_ && isEncodedScan() && topViewFits() && !top_running_ && cache_.size() < frameCount();
+}
+
+void CaseController::finishTopView() {
+    if (!topViewIncomplete() || busy_) return;
+    top_running_ = true;
+    // Same generation: the worker keeps the frames it has done and goes on with the others.
+    worker_->request(generation_, reader_->path(), recipe_, frame_, true, frameCount(), /*resume=*/true);
+    emit topViewChanged();
 }
 
 void CaseController::setBusy(bool b) {
@@ -446,6 +501,7 @@ void CaseController::onFrameReady(quint64 gen, qulonglong frame, FramePtr img, d
     }
     if (isEncodedScan() && !topViewFits() && background) {
         worker_->cancel();  // too large to keep every frame: no top view
+        stopTopViewRun();
         emit statusMessage(tr("Top view off: %1 frames of this grid do not fit in memory").arg(frameCount()));
     }
     if (frame == frame_) {
@@ -594,7 +650,7 @@ std::string CaseController::addMeasurement(core::Measurement m) {
     auto after = measurements();
     after.push_back(m);
     undo_.push(new AddMeasurementCommand(tr("Add %1 %2").arg(QString::fromStdString(core::kindName(m.kind)), QString::fromStdString(m.id)),
-                                         measurements(), after, [this](const MeasurementList& v) { setMeasurements(v); }));
+                                         measurements(), after, onThisCapture<MeasurementList>([this](const MeasurementList& v) { setMeasurements(v); })));
     setSelectedMeasurement(QString::fromStdString(m.id));
     return m.id;
 }
@@ -607,7 +663,7 @@ void CaseController::moveMeasurement(const std::string& id, const std::vector<co
             m.points = points;
         }
     undo_.push(new MoveMeasurementCommand(tr("Move %1").arg(QString::fromStdString(id)), measurements(), after,
-                                          [this](const MeasurementList& v) { setMeasurements(v); }));
+                                          onThisCapture<MeasurementList>([this](const MeasurementList& v) { setMeasurements(v); })));
 }
 
 void CaseController::deleteMeasurement(const std::string& id) {
@@ -615,7 +671,7 @@ void CaseController::deleteMeasurement(const std::string& id) {
     after.erase(std::remove_if(after.begin(), after.end(), [&](const auto& m) { return m.id == id; }), after.end());
     if (after.size() == measurements().size()) return;
     undo_.push(new DeleteMeasurementCommand(tr("Delete %1").arg(QString::fromStdString(id)), measurements(), after,
-                                            [this](const MeasurementList& v) { setMeasurements(v); }));
+                                            onThisCapture<MeasurementList>([this](const MeasurementList& v) { setMeasurements(v); })));
 }
 
 void CaseController::relabelMeasurement(const std::string& id, const std::string& label) {
@@ -626,7 +682,7 @@ void CaseController::relabelMeasurement(const std::string& id, const std::string
             m.label = label;
         }
     undo_.push(new RelabelMeasurementCommand(tr("Relabel %1").arg(QString::fromStdString(id)), measurements(), after,
-                                             [this](const MeasurementList& v) { setMeasurements(v); }));
+                                             onThisCapture<MeasurementList>([this](const MeasurementList& v) { setMeasurements(v); })));
 }
 
 void CaseController::setSelectedMeasurement(const QString& id) {
@@ -958,6 +1014,56 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
     return f.id;
 }
 
+double CaseController::speedMps() const {
+    if (!reader_) return 0;
+    try {
+        return recon::resolvedSpeed(reader_->header(), recipe_);
+    } catch (const std::exception&) {
+        return reader_->header().medium.speed_of_sound_m_s;
+    }
+}
+
+QString CaseController::speedText() const {
+    if (!reader_) return {};
+    const double c = speedMps();
+    const double recorded = reader_->header().medium.speed_of_sound_m_s;
+    if (recipe_.number("delay_model.speed_of_sound_m_s") > 0)
+        return tr("%1 m/s (recipe; the capture records %2 m/s)").arg(c, 0, 'f', 0).arg(recorded, 0, 'f', 0);
+    return tr("%1 m/s (from the capture)").arg(c, 0, 'f', 0);
+}
+
+QString CaseController::tgcText() const {
+    if (!reader_) return {};
+    const std::string mode = recipe_.text("tgc.mode");
+    if (mode == "off") return tr("off");
+    if (mode == "curve") {
+        QStringList pts;
+        try {
+            for (const auto& [z_m, db] : recon::parseTgcCurve(recipe_.text("tgc.curve")))
+                pts << tr("%1 dB at %2 mm").arg(db, 0, 'g', 4).arg(z_m * 1e3, 0, 'g', 5);
+        } catch (const std::exception&) {
+            return tr("gain curve (cannot be read)");
+        }
+        return tr("gain curve, %1; linear between, held beyond").arg(pts.join(", "));
+    }
+    if (mode != "attenuation") return QString::fromStdString(mode);
+    recon::TgcInputs in;
+    try {
+        in = recon::resolvedTgcInputs(reader_->header(), recipe_);
+    } catch (const std::exception&) {
+        return tr("attenuation (recipe cannot be read)");
+    }
+    const QString alpha_src = !in.attenuation_from_capture ? tr("recipe")
+                              : in.attenuation_recorded    ? tr("from the capture")
+                                                           : tr("none recorded in the capture: no gain");
+    const QString f_src = in.frequency_from_capture ? tr("array centre frequency, from the capture") : tr("recipe");
+    return tr("attenuation, round-trip gain 2·α·f·z with α = %1 dB/cm/MHz one way (%2), f = %3 MHz (%4)")
+        .arg(in.attenuation_db_per_cm_mhz, 0, 'f', 2)
+        .arg(alpha_src)
+        .arg(in.frequency_mhz, 0, 'f', 2)
+        .arg(f_src);
+}
+
 QString CaseController::techniqueText() const {
     if (!reader_) return {};
     const auto& h = reader_->header();
@@ -973,7 +1079,7 @@ QString CaseController::techniqueText() const {
                  .arg(h.transmits())
                  .arg(fmc ? tr(" (full matrix, total focusing)") : QString())
                  .arg(h.receive.sampling_frequency_hz / 1e6, 0, 'f', 1);
-    lines << tr("Speed of sound: %1 m/s (assumed known to ±1 %)").arg(h.medium.speed_of_sound_m_s, 0, 'f', 0);
+    lines << tr("Speed of sound: %1 (assumed known to ±1 %)").arg(speedText());
     if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
         lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
                      .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)
@@ -982,14 +1088,7 @@ QString CaseController::techniqueText() const {
                      .arg(envelope_->z_m.front() * 1e3, 0, 'f', 1)
                      .arg(envelope_->z_m.back() * 1e3, 0, 'f', 1)
                      .arg(fidelity_db_, 0, 'f', 2);
-    QStringList tgc;
-    for (const auto& st : recipe_.stages())
-        if (st.name.find("tgc") != std::string::npos || st.name.find("gain") != std::string::npos)
-            for (const auto& p : st.params)
-                tgc << QStringLiteral("%1 %2%3").arg(QString::fromStdString(p.label),
-                                                     QString::fromStdString(recipe_.valueText(st.name + "." + p.name)),
-                                                     p.unit.empty() ? QString() : " " + QString::fromStdString(p.unit));
-    if (!tgc.isEmpty()) lines << tr("TCG: %1").arg(tgc.join(", "));
+    lines << tr("TCG: %1").arg(tgcText());
     if (h.isSynthetic()) lines << tr("Data: synthetic demonstration data (simulated capture)");
     return lines.join('\n');
 }
@@ -1002,7 +1101,7 @@ QString CaseController::techniqueLine() const {
                     .arg(h.array.centre_frequency_hz / 1e6, 0, 'f', 1)
                     .arg(QString::fromUtf8(core::toString(h.transmit.kind)))
                     .arg(h.transmits())
-                    .arg(h.medium.speed_of_sound_m_s, 0, 'f', 0);
+                    .arg(speedMps(), 0, 'f', 0);
     if (envelope_ && envelope_->nx() > 1)
         s += tr(", grid %1 mm, fidelity %2 dB").arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3).arg(fidelity_db_, 0, 'f', 1);
     s += tr(", DR %1 dB").arg(dynamicRangeDb(), 0, 'f', 0);

@@ -8,6 +8,7 @@
 #include <QString>
 #include <QUndoStack>
 
+#include <functional>
 #include <map>
 #include <memory>
 #include <optional>
@@ -64,7 +65,8 @@ public:
     bool hasCapture() const { return reader_ != nullptr; }
     size_t captureCount() const { return doc_.captures.size(); }
     size_t activeCapture() const { return doc_.active_capture; }
-    /// Switches the active capture of the case (keeps each capture's recipe, view, measurements).
+    /// Switches the active capture of the case (keeps each capture's recipe, view, measurements
+    /// and the undo history: undoing an edit made on another capture switches back to it first).
     void setActiveCapture(size_t index);
     const core::CaptureHeader& header() const;
     QString capturePath() const;
@@ -78,10 +80,16 @@ public:
 
     // ------------------------------------------------------------------ recipe
     const core::Recipe& recipe() const { return recipe_; }
-    /// Undoable edit of one "stage.param" value. Throws core::SettingError on a bad value.
+    /// Undoable edit of one "stage.param" value. Throws core::SettingError on a bad value or
+    /// on a recipe the open capture cannot be reconstructed with (e.g. a grid over the pixel
+    /// limit); the recipe is then left as it was.
     void editRecipeValue(const std::string& key, const std::string& value);
-    /// Undoable replacement of the whole recipe (e.g. "Load recipe").
+    /// Undoable replacement of the whole recipe (e.g. "Load recipe"). Throws core::SettingError
+    /// like editRecipeValue.
     void editRecipe(const core::Recipe& r, const QString& what);
+    /// Throws core::SettingError when `r` cannot be used with the open capture (grid, speed of
+    /// sound, f-number, TCG curve); does nothing without a capture.
+    void checkRecipe(const core::Recipe& r) const;
     /// Applies a recipe without an undo entry (used by undo commands).
     void applyRecipe(const core::Recipe& r);
 
@@ -108,6 +116,9 @@ public:
     double lastBeamformSeconds() const { return beamform_s_; }
     double amplitudeFidelityDb() const { return fidelity_db_; }
     bool isBusy() const { return busy_; }
+    /// True while frames are beamformed in the background for the top view.
+    bool isTopViewRunning() const { return top_running_; }
+    /// Stops the foreground run and the background top-view frames.
     void cancelReconstruction();
     /// Number of Reconstructor runs started (tests: display-only edits must not add any).
     long beamformRuns() const { return worker_->runs(); }
@@ -121,6 +132,11 @@ public:
     bool topViewFits() const;
     /// Depth gate of the top view, mm (near field and a known plate's back wall left out).
     std::pair<double, double> topViewGateMm() const { return top_gate_mm_; }
+    /// True when the top view could have every frame but some are missing and nothing is
+    /// beamforming them (the run was cancelled or failed).
+    bool topViewIncomplete() const;
+    /// Beamforms the frames the top view still lacks, in the background.
+    void finishTopView();
 
     // ------------------------------------------------------------------ measurements
     const std::vector<core::Measurement>& measurements() const;
@@ -207,6 +223,12 @@ public:
     QString techniqueText() const;
     /// One line for exported images.
     QString techniqueLine() const;
+    /// Speed of sound the reconstruction uses, m/s (the recipe's, or the capture's when the recipe says 0).
+    double speedMps() const;
+    /// "5920 m/s (from the capture)" or "... (recipe; the capture records ...)".
+    QString speedText() const;
+    /// The TCG actually applied: mode, and for attenuation the α and f used with their sources.
+    QString tgcText() const;
 
     // ------------------------------------------------------------------ view state
     core::ViewState viewState() const { return view_; }
@@ -226,6 +248,8 @@ signals:
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
+    /// No run reports progress any more (finished, cancelled or failed): hide the progress.
+    void progressStopped();
     void dirtyChanged(bool dirty);
     void errorOccurred(QString message);
     void statusMessage(QString message);
@@ -239,6 +263,12 @@ private:
     void rebuildTopView();
     void setBusy(bool b);
     void markDirty();
+    void stopTopViewRun();
+    /// Wraps a setter of per-capture state so that it first makes the capture active that was
+    /// active when the edit was made (undo/redo after switching captures).
+    template <typename T>
+    std::function<void(const T&)> onThisCapture(std::function<void(const T&)> set);
+    void ensureActiveCapture(size_t index);
     /// Pixels (ix, iz) of the current frame inside a measurement's box (see addCurvePointFrom).
     template <class F>
     void forEachPixelIn(const core::Measurement& m, F&& f) const;
@@ -272,6 +302,7 @@ private:
     double beamform_s_ = 0;
     double fidelity_db_ = 0;
     bool busy_ = false;
+    bool top_running_ = false;
     std::vector<core::Measurement> empty_;
 };
 

@@ -106,6 +106,7 @@ LevelBox makeLevelBox(const QString& title, const QString& name) {
     b.fields->setObjectName(name + QStringLiteral("Fields"));
     b.form = new QFormLayout(b.fields);
     b.form->setContentsMargins(0, 0, 0, 0);
+    b.form->setRowWrapPolicy(QFormLayout::WrapLongRows);  // narrow dock: label above its field
     layout->addWidget(b.fields);
     return b;
 }
@@ -137,6 +138,7 @@ void FindingsPane::buildUi() {
     auto* scroll = new QScrollArea;
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
+    scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);  // the pane wraps; it never scrolls sideways
     auto* content = new QWidget;
     auto* v = new QVBoxLayout(content);
     v->setContentsMargins(0, 0, 0, 0);
@@ -156,7 +158,7 @@ void FindingsPane::buildUi() {
     technique_ = new QPlainTextEdit;
     technique_->setObjectName(QStringLiteral("technique"));
     technique_->setReadOnly(true);
-    technique_->setMaximumHeight(90);
+    technique_->setMaximumHeight(150);
     cf->addWidget(technique_);
     v->addWidget(case_box);
 
@@ -166,6 +168,9 @@ void FindingsPane::buildUi() {
     list_ = new QListWidget;
     list_->setObjectName(QStringLiteral("findingList"));
     list_->setMaximumHeight(110);
+    list_->setWordWrap(true);
+    list_->setTextElideMode(Qt::ElideNone);
+    list_->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     lv->addWidget(list_);
     auto* lb = new QHBoxLayout;
     add_ = new QPushButton(tr("Add finding"));
@@ -191,6 +196,7 @@ void FindingsPane::buildUi() {
     indication_box_ = new QGroupBox(tr("1  Indication: what is seen"));
     indication_box_->setObjectName(QStringLiteral("indicationGroup"));
     auto* inf = new QFormLayout(indication_box_);
+    inf->setRowWrapPolicy(QFormLayout::WrapLongRows);  // narrow dock: label above its field
     location_ = new QLineEdit;
     location_->setObjectName(QStringLiteral("location"));
     location_->setPlaceholderText(tr("e.g. frame 11 (y = 10.0 mm), x = 2.4 mm"));
@@ -421,6 +427,7 @@ void FindingsPane::buildUi() {
     connect(reason_, &QLineEdit::textEdited, this, [this](const QString& t) {
         if (auto* f = current()) {
             f->interpretation_reason = t.toStdString();
+            updateHedgeNote();
             findingChanged(tr("Edit interpretation reason"));
         }
     });
@@ -599,7 +606,15 @@ void FindingsPane::updateLocks() {
 
 void FindingsPane::updateHedgeNote() {
     const core::Finding* f = current();
-    const std::string note = f ? core::hedgingNote(core::hedgingWords(f->indication.description)) : std::string();
+    // Hedges weaken the description and the interpretation's reason alike (the reason may say
+    // what the indication is "consistent with": that is its job).
+    std::vector<std::string> words;
+    if (f) {
+        words = core::hedgingWords(f->indication.description);
+        for (const auto& w : core::hedgingWordsInReason(f->interpretation_reason))
+            if (std::find(words.begin(), words.end(), w) == words.end()) words.push_back(w);
+    }
+    const std::string note = core::hedgingNote(words);
     hedge_note_->setText(q(note));
     hedge_note_->setVisible(!note.empty());
 }

@@ -7,6 +7,7 @@
 #include <QCloseEvent>
 #include <QComboBox>
 #include <QDateTime>
+#include <QDir>
 #include <QDockWidget>
 #include <QDragEnterEvent>
 #include <QDropEvent>
@@ -20,6 +21,7 @@
 #include <QMessageBox>
 #include <QMimeData>
 #include <QProgressBar>
+#include <QSettings>
 #include <QSlider>
 #include <QStatusBar>
 #include <QTextStream>
@@ -38,6 +40,7 @@
 #include "ui/controller/case_controller.h"
 #include "ui/dac/curve_panel.h"
 #include "ui/export/image_export.h"
+#include "ui/findings/findings_pane.h"
 #include "ui/main/findings_dock.h"
 #include "ui/recipe/recipe_panel.h"
 #include "ui/topview/top_view.h"
@@ -65,17 +68,28 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     connect(ctl_, &CaseController::errorOccurred, this, [this](const QString& m) { showError(tr("Problem"), m); });
     connect(ctl_, &CaseController::statusMessage, this, [this](const QString& m) { statusBar()->showMessage(m, 5000); });
     connect(ctl_, &CaseController::busyChanged, this, [this](bool busy) {
-        progress_->setVisible(busy);
-        cancel_->setVisible(busy);
-        if (busy) progress_->setValue(0);
+        if (busy) {
+            progress_->setValue(0);
+            progress_label_->clear();
+            progress_label_->show();
+            progress_->show();
+            cancel_->show();
+        } else if (!ctl_->isTopViewRunning()) {
+            hideProgress();
+        }
     });
     connect(ctl_, &CaseController::progressChanged, this, [this](double f, const QString& what) {
         progress_->setValue(static_cast<int>(std::lround(f * 100)));
-        progress_->setFormat(what + "  %p%");
-        if (!ctl_->isBusy()) {  // background frames for the top view: show quietly
-            progress_->setVisible(f < 1.0);
-            cancel_->setVisible(false);
-        }
+        progress_->setToolTip(what);
+        // The description in its own label, cut to its width: it never runs over other text.
+        progress_label_->setText(progress_label_->fontMetrics().elidedText(what, Qt::ElideRight, progress_label_->maximumWidth()));
+        progress_label_->setToolTip(what);
+        progress_label_->show();
+        progress_->show();
+        cancel_->show();  // background frames for the top view can be stopped too
+    });
+    connect(ctl_, &CaseController::progressStopped, this, [this] {
+        if (!ctl_->isBusy() && !ctl_->isTopViewRunning()) hideProgress();
     });
     connect(view_, &ImageView::viewChanged, this, [this] { ctl_->setViewState(view_->viewState()); });
     connect(view_, &ImageView::toolChanged, this, [this](Tool t) {
@@ -111,8 +125,23 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     autosave_->start();
 
     resize(1480, 920);
+    if (opt_.interactive) restoreLayout();
     updateTitle();
     onCaptureChanged();
+}
+
+void MainWindow::restoreLayout() {
+    QSettings st;
+    const QByteArray geometry = st.value("window/geometry").toByteArray();
+    const QByteArray state = st.value("window/state").toByteArray();
+    if (!geometry.isEmpty()) restoreGeometry(geometry);
+    if (!state.isEmpty()) restoreState(state, kLayoutVersion);
+}
+
+void MainWindow::saveLayout() {
+    QSettings st;
+    st.setValue("window/geometry", saveGeometry());
+    st.setValue("window/state", saveState(kLayoutVersion));
 }
 
 MainWindow::~MainWindow() = default;
@@ -171,6 +200,7 @@ void MainWindow::buildDocks() {
     resizeDocks({td}, {240}, Qt::Vertical);
     resizeDocks({td, top_dock_}, {880, 520}, Qt::Horizontal);
     resizeDocks({fd, md}, {420, 260}, Qt::Vertical);
+    resizeDocks({fd}, {390}, Qt::Horizontal);
 }
 
 void MainWindow::buildActions() {
@@ -178,7 +208,7 @@ void MainWindow::buildActions() {
     QAction* a = file->addAction(tr("&Open capture or case…"), this, &MainWindow::open);
     a->setShortcut(QKeySequence::Open);
     a = file->addAction(tr("Add capture to case…"), this, [this] {
-        const QString p = QFileDialog::getOpenFileName(this, tr("Add capture"), {}, tr("Captures (*.h5 *.hdf5)"));
+        const QString p = QFileDialog::getOpenFileName(this, tr("Add capture"), caseFolder(), tr("Captures (*.h5 *.hdf5)"));
         if (p.isEmpty()) return;
         try {
             ctl_->addCapture(p);
@@ -186,6 +216,11 @@ void MainWindow::buildActions() {
             showError(tr("Cannot add capture"), QString::fromStdString(e.what()));
         }
     });
+    demo_menu_ = file->addMenu(tr("Demo cases"));
+    demo_menu_->setToolTip(tr("Synthetic demonstration cases (available after umbra --demo DIR)"));
+    demo_menu_->addAction(tr("Weld W-031 with its reference block"), this, [this] { openDemoCase(demo_dir_, QStringLiteral("weld")); });
+    demo_menu_->addAction(tr("Phantom P-2 (sonography practice)"), this, [this] { openDemoCase(demo_dir_, QStringLiteral("phantom")); });
+    demo_menu_->setEnabled(false);
     file->addSeparator();
     a = file->addAction(tr("&Save case"), this, &MainWindow::save);
     a->setShortcut(QKeySequence::Save);
@@ -348,9 +383,13 @@ void MainWindow::buildStatusBar() {
     timing_ = new QLabel;
     timing_->setToolTip(tr("Display: time to re-map the stored image (TCG, log compression, colour). "
                            "Beamform: wall time of the last delay-and-sum run."));
+    progress_label_ = new QLabel;
+    progress_label_->setMaximumWidth(300);
+    progress_label_->hide();
     progress_ = new QProgressBar;
-    progress_->setMaximumWidth(320);
+    progress_->setMaximumWidth(140);
     progress_->setRange(0, 100);
+    progress_->setFormat(QStringLiteral("%p%"));
     progress_->hide();
     cancel_ = new QToolButton;
     cancel_->setText(tr("Cancel"));
@@ -365,6 +404,7 @@ void MainWindow::buildStatusBar() {
     statusBar()->addWidget(readout_);
     statusBar()->addPermanentWidget(ref_warning_);  // permanent: temporary messages never cover it
     statusBar()->addPermanentWidget(timing_);
+    statusBar()->addPermanentWidget(progress_label_);
     statusBar()->addPermanentWidget(progress_);
     statusBar()->addPermanentWidget(cancel_);
 }
@@ -436,7 +476,7 @@ bool MainWindow::maybeSave() {
 }
 
 void MainWindow::open() {
-    const QString p = QFileDialog::getOpenFileName(this, tr("Open capture or case"), {},
+    const QString p = QFileDialog::getOpenFileName(this, tr("Open capture or case"), caseFolder(),
                                                    tr("Captures and cases (*.h5 *.hdf5 *.umbracase);;All files (*)"));
     if (!p.isEmpty()) openPath(p);
 }
@@ -546,7 +586,8 @@ bool MainWindow::save() {
 }
 
 bool MainWindow::saveAs() {
-    QString p = QFileDialog::getSaveFileName(this, tr("Save case"), ctl_->displayName() + ".umbracase", tr("Cases (*.umbracase)"));
+    QString p = QFileDialog::getSaveFileName(this, tr("Save case"), inCaseFolder(ctl_->displayName() + ".umbracase"),
+                                             tr("Cases (*.umbracase)"));
     if (p.isEmpty()) return false;
     if (!p.endsWith(".umbracase")) p += ".umbracase";
     return saveCaseTo(p);
@@ -578,14 +619,14 @@ void MainWindow::exportDialog() {
     bool ok = false;
     const int w = QInputDialog::getInt(this, tr("Export image"), tr("Width of the PNG, pixels:"), 2400, 400, 12000, 100, &ok);
     if (!ok) return;
-    QString p = QFileDialog::getSaveFileName(this, tr("Export image"), ctl_->displayName() + ".png", tr("PNG images (*.png)"));
+    QString p = QFileDialog::getSaveFileName(this, tr("Export image"), inCaseFolder(ctl_->displayName() + ".png"), tr("PNG images (*.png)"));
     if (p.isEmpty()) return;
     if (!p.endsWith(".png", Qt::CaseInsensitive)) p += ".png";
     exportImage(p, w);
 }
 
 void MainWindow::loadRecipe() {
-    const QString p = QFileDialog::getOpenFileName(this, tr("Load recipe"), {}, tr("Recipes (*.json);;All files (*)"));
+    const QString p = QFileDialog::getOpenFileName(this, tr("Load recipe"), caseFolder(), tr("Recipes (*.json);;All files (*)"));
     if (p.isEmpty()) return;
     std::ifstream in(p.toStdString());
     if (!in) {
@@ -601,11 +642,32 @@ void MainWindow::loadRecipe() {
         showError(tr("Cannot load recipe"), QString::fromStdString(e.what()));
         return;
     }
-    ctl_->editRecipe(r, tr("Load recipe %1").arg(QFileInfo(p).fileName()));
+    try {
+        ctl_->editRecipe(r, tr("Load recipe %1").arg(QFileInfo(p).fileName()));
+    } catch (const std::exception& e) {
+        showError(tr("Recipe not loaded"), tr("%1 cannot be used with this capture: %2").arg(p, QString::fromStdString(e.what())));
+    }
+}
+
+QString MainWindow::caseFolder() const {
+    if (!ctl_->casePath().isEmpty()) return QFileInfo(ctl_->casePath()).absolutePath();
+    if (!ctl_->capturePath().isEmpty()) return QFileInfo(ctl_->capturePath()).absolutePath();
+    return {};
+}
+
+QString MainWindow::inCaseFolder(const QString& file_name) const {
+    const QString dir = caseFolder();
+    return dir.isEmpty() ? file_name : QDir(dir).filePath(file_name);
+}
+
+void MainWindow::hideProgress() {
+    progress_label_->hide();
+    progress_->hide();
+    cancel_->hide();
 }
 
 void MainWindow::saveRecipe() {
-    QString p = QFileDialog::getSaveFileName(this, tr("Save recipe"), "recipe.json", tr("Recipes (*.json)"));
+    QString p = QFileDialog::getSaveFileName(this, tr("Save recipe"), inCaseFolder("recipe.json"), tr("Recipes (*.json)"));
     if (p.isEmpty()) return;
     QFile f(p);
     if (!f.open(QIODevice::WriteOnly | QIODevice::Truncate)) {
@@ -625,7 +687,9 @@ void MainWindow::addFindingFromSelection() {
         statusBar()->showMessage(tr("Select a measurement first (Esc, then click it)"), 5000);
         return;
     }
-    ctl_->addFindingFromMeasurement(id.toStdString());
+    const std::string fid = ctl_->addFindingFromMeasurement(id.toStdString());
+    if (auto* pane = qobject_cast<FindingsPane*>(findings_)) pane->selectFinding(QString::fromStdString(fid));
+    statusBar()->showMessage(tr("Finding added from %1: describe what is seen in the Findings pane").arg(id), 6000);
 }
 
 void MainWindow::addCurvePointFromSelection() {
@@ -678,28 +742,53 @@ void MainWindow::updateReferenceWarning() {
     ref_warning_->setVisible(c.has_value());
 }
 
-bool MainWindow::openDemo(const QString& dir) {
-    const QString weld = dir + "/weld_coupon.h5";
-    if (!QFileInfo::exists(weld)) {
-        showError(tr("Demo not found"), tr("%1 does not exist. Make the demo captures first: cmake --build build --target samples").arg(weld));
+bool MainWindow::openDemo(const QString& dir) { return openDemoCase(dir, QStringLiteral("weld")); }
+
+QStringList MainWindow::demoCaseNames() { return {QStringLiteral("weld"), QStringLiteral("phantom")}; }
+
+bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
+    const bool weld = name == "weld";
+    if (!weld && name != "phantom") {
+        showError(tr("Unknown demo case"), tr("There is no demo case \"%1\"; the demo cases are: %2.").arg(name, demoCaseNames().join(", ")));
         return false;
     }
+    const QString main = dir + (weld ? "/weld_coupon.h5" : "/phantom_p2.h5");
+    if (!QFileInfo::exists(main)) {
+        showError(tr("Demo not found"), tr("%1 does not exist. Make the demo captures first: cmake --build build --target samples").arg(main));
+        return false;
+    }
+    if (!maybeSave()) return false;
+    demo_dir_ = QFileInfo(dir).absoluteFilePath();
+    if (demo_menu_) demo_menu_->setEnabled(true);
+    QString hint;
     try {
-        ctl_->openCapture(weld);
-        const QString phantom = dir + "/phantom_p2.h5";
-        if (QFileInfo::exists(phantom)) {
-            ctl_->addCapture(phantom, false);
-        }
-        const QString block = dir + "/reference_block.h5";
-        if (QFileInfo::exists(block)) ctl_->addCapture(block, false);
+        ctl_->openCapture(main);
         core::CaseDocument t = ctl_->document();
-        t.title = "Weld W-031, spool 14 (synthetic demo)";
-        t.background = "Production weld, 5 % random selection for volumetric examination under the shop's written procedure.";
+        if (weld) {
+            // The reference block belongs to the weld's examination: its side-drilled holes give
+            // the amplitude reference the weld's echoes are reported against.
+            const QString block = dir + "/reference_block.h5";
+            if (QFileInfo::exists(block)) ctl_->addCapture(block, false);
+            t.title = "Weld W-031, spool 14 (synthetic demo)";
+            t.background = "Production weld, 5 % random selection for volumetric examination under the shop's written procedure. "
+                           "Reference block RB-25 is the case's second capture.";
+            // Start where there is something to see: y = 0 mm crosses the fusion-face reflector.
+            if (ctl_->frameCount() > 10) ctl_->setCurrentFrame(10);
+            hint = tr("Demo: this frame (y = 0 mm) crosses a fusion-face reflector near 10 mm depth, right of the weld centre. "
+                      "Press S and drag a box around it to size it at −6 dB, then Ctrl+F for a finding. "
+                      "The top view (bottom right) shows the reflector along the weld.");
+        } else {
+            t.title = "Phantom P-2 (synthetic demo)";
+            t.background = "Invented tissue-mimicking training phantom: wires, a 6 mm anechoic cyst and a +6 dB inclusion.";
+            hint = tr("Demo: the round dark region left of centre at about 25 mm depth is the 6 mm cyst. "
+                      "Press E and drag from its centre to its edge to measure it with an ellipse.");
+        }
         ctl_->setCaseText(t);
     } catch (const std::exception& e) {
         showError(tr("Cannot open the demo"), QString::fromStdString(e.what()));
         return false;
     }
+    statusBar()->showMessage(hint, 60000);
     return true;
 }
 
@@ -744,6 +833,7 @@ void MainWindow::demoAnnotate() {
     ctl_->addMeasurement(cal);
     ctl_->setSelectedMeasurement(QString::fromStdString(box_id));
     const std::string fid = ctl_->addFindingFromMeasurement(box_id);
+    if (auto* pane = qobject_cast<FindingsPane*>(findings_)) pane->selectFinding(QString::fromStdString(fid));
     auto fs = ctl_->findings();
     for (auto& x : fs)
         if (x.id == fid)
@@ -785,7 +875,10 @@ void MainWindow::closeEvent(QCloseEvent* e) {
         // Saved or deliberately discarded: the auto-saves are no longer needed.
         if (!ctl_->casePath().isEmpty() && (!ctl_->isDirty() || opt_.interactive))
             QFile::remove(QString::fromStdString(core::autosavePath(ctl_->casePath().toStdString())));
-        if (opt_.interactive) QFile::remove(CaseController::untitledAutosavePath());
+        if (opt_.interactive) {
+            QFile::remove(CaseController::untitledAutosavePath());
+            saveLayout();
+        }
         e->accept();
     } else {
         e->ignore();

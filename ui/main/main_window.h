@@ -5,6 +5,7 @@
 // status bar with the cursor readout, timings, progress and cancel.
 #include <QMainWindow>
 #include <QPointer>
+#include <QStringList>
 
 #include <functional>
 #include <vector>
@@ -13,6 +14,7 @@ class QAction;
 class QActionGroup;
 class QComboBox;
 class QLabel;
+class QMenu;
 class QProgressBar;
 class QSlider;
 class QTimer;
@@ -55,8 +57,13 @@ public:
     bool openPath(const QString& path);
     /// Saves the case to `path` (Save As when empty and untitled). Returns false on error/cancel.
     bool saveCaseTo(const QString& path);
-    /// Opens the demo: DIR/weld_coupon.h5 (and DIR/phantom_p2.h5 as a second capture).
+    /// Opens the weld demo case: DIR/weld_coupon.h5 with DIR/reference_block.h5 as its second
+    /// capture, on the frame that crosses the fusion-face reflector. Same as openDemoCase(dir, "weld").
     bool openDemo(const QString& dir);
+    /// Opens one demo case from DIR as its own case: "weld" (weld coupon + reference block) or
+    /// "phantom" (Phantom P-2). File → Demo cases offers the others afterwards.
+    bool openDemoCase(const QString& dir, const QString& name);
+    static QStringList demoCaseNames();
     /// Places a demonstration caliper, extent box and finding on the strongest echo.
     /// Demo: adds to the case's distance–amplitude curve the strongest echo within ±1.5 mm of
     /// each depth (mm) on the current frame (the reference block's side-drilled holes), and
@@ -99,6 +106,15 @@ private:
     void makeTcgFromCurve();
     void updateReferenceWarning();
     void setTool(Tool t);
+    /// Folder of the case file, else of the active capture ("" when neither): where file
+    /// dialogs open.
+    QString caseFolder() const;
+    QString inCaseFolder(const QString& file_name) const;
+    void hideProgress();
+    /// Window size and dock layout from the last interactive session (QSettings).
+    void restoreLayout();
+    void saveLayout();
+    static constexpr int kLayoutVersion = 1;
 
     Options opt_;
     CaseController* ctl_;
@@ -110,6 +126,8 @@ private:
     QWidget* findings_ = nullptr;
     QWidget* table_ = nullptr;
     QDockWidget* top_dock_ = nullptr;
+    QMenu* demo_menu_ = nullptr;
+    QString demo_dir_;
 
     QActionGroup* tools_ = nullptr;
     QAction* undo_ = nullptr;
@@ -120,6 +138,7 @@ private:
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;
     QLabel* ref_warning_ = nullptr;  ///< distance–amplitude curve: what 0 dB is, or not comparable with the recipe
+    QLabel* progress_label_ = nullptr;  ///< what is running (beside the bar, never inside it)
     QProgressBar* progress_ = nullptr;
     QToolButton* cancel_ = nullptr;
     QTimer* autosave_ = nullptr;

@@ -2,6 +2,7 @@
 #include "ui/recipe/recipe_panel.h"
 
 #include <QCheckBox>
+#include <QCoreApplication>
 #include <QComboBox>
 #include <QDoubleSpinBox>
 #include <QFormLayout>
@@ -9,6 +10,7 @@
 #include <QHBoxLayout>
 #include <QLabel>
 #include <QLineEdit>
+#include <QLocale>
 #include <QPushButton>
 #include <QScrollArea>
 #include <QSpinBox>
@@ -17,11 +19,13 @@
 #include <QValidator>
 
 #include <algorithm>
+#include <map>
 #include <utility>
 #include <cmath>
 
 #include "core/error.h"
 #include "ui/controller/case_controller.h"
+#include "ui/recipe/gain_curve_editor.h"
 
 namespace umbra::ui {
 
@@ -38,29 +42,47 @@ int decimalsFor(double step) {
     if (!(step > 0)) return 3;
     return std::clamp(static_cast<int>(std::ceil(-std::log10(step) - 1e-9)), 0, 6);
 }
-/// Double spin box that shows `zero` (e.g. "from capture") instead of 0 when 0 is not the
-/// minimum of its range (then QAbstractSpinBox::specialValueText cannot be used). The unit is
-/// part of the text so that the zero text stands alone.
-class ZeroTextDoubleSpinBox : public QDoubleSpinBox {
+/// Double spin box for a declared real parameter. It keeps every value the parameter can take
+/// to 6 decimals and shows as many decimals as the value needs (at least those of its step), so
+/// a typed 0.013 mm stays 0.013 mm instead of being rounded to the step's decimals. It shows
+/// `zero` (e.g. "from capture") instead of 0 when 0 is a mode; the unit is part of its text.
+class RealSpinBox : public QDoubleSpinBox {
 public:
-    ZeroTextDoubleSpinBox(QString zero, QString unit) : zero_(std::move(zero)), unit_(std::move(unit)) {}
-    QString textFromValue(double v) const override {
-        if (v == 0.0) return zero_;
-        return QDoubleSpinBox::textFromValue(v) + unit_;
+    RealSpinBox(QString zero, QString unit, int min_decimals)
+        : zero_(std::move(zero)), unit_(std::move(unit)), min_decimals_(min_decimals) {
+        setDecimals(kMaxDecimals);
     }
+    QString textFromValue(double v) const override {
+        if (v == 0.0 && !zero_.isEmpty()) return zero_;
+        QLocale loc = locale();
+        loc.setNumberOptions(loc.numberOptions() | QLocale::OmitGroupSeparator);
+        QString t = loc.toString(v, 'f', kMaxDecimals);
+        const QChar point = loc.decimalPoint().front();
+        const int dot = t.indexOf(point);
+        if (dot >= 0) {
+            int keep = t.size();
+            while (keep > dot + 1 + min_decimals_ && t[keep - 1] == '0') --keep;
+            if (keep == dot + 1) --keep;  // no decimals left: drop the point
+            t.truncate(keep);
+        }
+        return t + unit_;
+    }
+    /// Re-renders the text with this class's textFromValue (Qt calls it only on changes).
+    void refreshText() { setSuffix(QString()); }
     double valueFromText(const QString& text) const override {
         const QString t = stripped(text);
-        if (t.isEmpty() || zero_.startsWith(t, Qt::CaseInsensitive)) return 0.0;
+        if (!zero_.isEmpty() && (t.isEmpty() || zero_.startsWith(t, Qt::CaseInsensitive))) return 0.0;
         return QDoubleSpinBox::valueFromText(t);
     }
     QValidator::State validate(QString& input, int& pos) const override {
-        if (zero_.startsWith(input.trimmed(), Qt::CaseInsensitive))
+        if (!zero_.isEmpty() && !input.trimmed().isEmpty() && zero_.startsWith(input.trimmed(), Qt::CaseInsensitive))
             return input.trimmed().compare(zero_, Qt::CaseInsensitive) == 0 ? QValidator::Acceptable : QValidator::Intermediate;
         QString t = stripped(input);
         return QDoubleSpinBox::validate(t, pos);
     }
 
 private:
+    static constexpr int kMaxDecimals = 6;
     QString stripped(const QString& text) const {
         QString t = text.trimmed();
         const QString u = unit_.trimmed();
@@ -68,7 +90,26 @@ private:
         return t.trimmed();
     }
     QString zero_, unit_;
+    int min_decimals_;
 };
+
+/// What a user reads for a choice value (the recipe stores the value itself).
+QString choiceLabel(const std::string& value) {
+    static const std::map<std::string, const char*> labels = {
+        {"grayscale", QT_TRANSLATE_NOOP("RecipePanel", "Grayscale")},
+        {"lab_gray", QT_TRANSLATE_NOOP("RecipePanel", "Gray, even lightness steps")},
+        {"lab_heat", QT_TRANSLATE_NOOP("RecipePanel", "Heat: violet, red, orange, yellow")},
+        {"lab_ice", QT_TRANSLATE_NOOP("RecipePanel", "Ice: blue to cyan")},
+        {"off", QT_TRANSLATE_NOOP("RecipePanel", "Off")},
+        {"attenuation", QT_TRANSLATE_NOOP("RecipePanel", "Attenuation (2·α·f·z)")},
+        {"curve", QT_TRANSLATE_NOOP("RecipePanel", "Gain curve")},
+    };
+    const auto it = labels.find(value);
+    if (it != labels.end()) return QCoreApplication::translate("RecipePanel", it->second);
+    QString t = QString::fromStdString(value).replace('_', ' ');
+    if (!t.isEmpty()) t[0] = t[0].toUpper();
+    return t;
+}
 
 QString tooltipFor(const core::StageSpec& st, const core::ParamSpec& p) {
     QString t = QStringLiteral("<b>%1</b> <code>%2.%3</code><br>%4")
@@ -134,17 +175,11 @@ void RecipePanel::build() {
             const QString unit = p.unit.empty() ? QString() : " " + QString::fromStdString(p.unit);
             switch (p.kind) {
                 case core::ParamKind::Real: {
-                    const QString zero = QString::fromStdString(p.zero_means);
-                    // 0 as a mode: Qt's special-value text when 0 is the minimum, else a box that
-                    // writes the text for 0 itself (then the unit is part of its text).
-                    const bool own_zero = !zero.isEmpty() && p.min < 0 && p.max > 0;
-                    QDoubleSpinBox* s = own_zero ? new ZeroTextDoubleSpinBox(zero, unit) : new QDoubleSpinBox;
                     const double step = p.step > 0 ? p.step : niceStepFor(p.max - p.min);
-                    s->setDecimals(decimalsFor(step));
+                    auto* s = new RealSpinBox(QString::fromStdString(p.zero_means), unit, decimalsFor(step));
                     s->setRange(p.min, p.max);
                     s->setSingleStep(step);
-                    if (!own_zero) s->setSuffix(unit);
-                    if (!zero.isEmpty() && p.min == 0) s->setSpecialValueText(zero);
+                    s->refreshText();
                     s->setKeyboardTracking(false);
                     connect(s, &QDoubleSpinBox::valueChanged, this, [this, key, s](double x) {
                         commit(key, QString::number(x, 'g', 12).toStdString());
@@ -166,8 +201,10 @@ void RecipePanel::build() {
                 }
                 case core::ParamKind::Choice: {
                     auto* c = new QComboBox;
-                    for (const auto& ch : p.choices) c->addItem(QString::fromStdString(ch));
-                    connect(c, &QComboBox::currentTextChanged, this, [this, key](const QString& t) { commit(key, t.toStdString()); });
+                    for (const auto& ch : p.choices) c->addItem(choiceLabel(ch), QString::fromStdString(ch));
+                    connect(c, &QComboBox::currentIndexChanged, this, [this, key, c](int i) {
+                        if (i >= 0) commit(key, c->itemData(i).toString().toStdString());
+                    });
                     w = c;
                     break;
                 }
@@ -178,6 +215,12 @@ void RecipePanel::build() {
                     break;
                 }
                 case core::ParamKind::Text: {
+                    if (p.unit == "mm:dB") {  // a gain curve: a table of points, not the text form
+                        auto* g = new GainCurveEditor;
+                        connect(g, &GainCurveEditor::curveEdited, this, [this, key](const QString& t) { commit(key, t.toStdString()); });
+                        w = g;
+                        break;
+                    }
                     auto* e = new QLineEdit;
                     e->setPlaceholderText(tr("(default)"));
                     connect(e, &QLineEdit::editingFinished, this, [this, key, e] { commit(key, e->text().toStdString()); });
@@ -197,7 +240,7 @@ void RecipePanel::build() {
         v->addWidget(box);
     }
     auto* legend = new QLabel(tr("<span style='color:#1f5f9e'>Blue</span> settings only re-map the stored image; "
-                                 "the others beamform again (in the background; Esc or Cancel stops it)."));
+                                 "the others beamform again (in the background; Ctrl+. or the Cancel button in the status bar stops it)."));
     legend->setWordWrap(true);
     legend->setStyleSheet("color: #5b6470; font-size: 9pt; padding: 4px;");
     v->addWidget(legend);
@@ -220,7 +263,11 @@ void RecipePanel::commit(const std::string& key, const std::string& value) {
         ctl_->editRecipeValue(key, value);
         note_->hide();
     } catch (const std::exception& e) {
-        note_->setText(QString::fromStdString(e.what()));
+        // The recipe is unchanged: say so, and put the editor back to the value in use.
+        const core::Recipe& r = ctl_->recipe();
+        const QString label = r.has(key) ? QString::fromStdString(r.spec(key).label) : QString::fromStdString(key);
+        const QString kept = r.has(key) ? QString::fromStdString(r.valueText(key)) : QString();
+        note_->setText(tr("%1 not changed (still %2): %3").arg(label, kept, QString::fromStdString(e.what())));
         note_->show();
         syncFromRecipe();
     }
@@ -235,9 +282,16 @@ void RecipePanel::syncFromRecipe() {
         switch (p.kind) {
             case core::ParamKind::Real: static_cast<QDoubleSpinBox*>(w)->setValue(r.number(key)); break;
             case core::ParamKind::Integer: static_cast<QSpinBox*>(w)->setValue(r.integer(key)); break;
-            case core::ParamKind::Choice: static_cast<QComboBox*>(w)->setCurrentText(QString::fromStdString(r.text(key))); break;
+            case core::ParamKind::Choice: {
+                auto* c = static_cast<QComboBox*>(w);
+                c->setCurrentIndex(c->findData(QString::fromStdString(r.text(key))));
+                break;
+            }
             case core::ParamKind::Flag: static_cast<QCheckBox*>(w)->setChecked(r.flag(key)); break;
-            case core::ParamKind::Text: static_cast<QLineEdit*>(w)->setText(QString::fromStdString(r.text(key))); break;
+            case core::ParamKind::Text:
+                if (auto* g = qobject_cast<GainCurveEditor*>(w)) g->setCurve(QString::fromStdString(r.text(key)));
+                else static_cast<QLineEdit*>(w)->setText(QString::fromStdString(r.text(key)));
+                break;
         }
     }
     syncing_ = false;

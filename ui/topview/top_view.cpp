@@ -3,6 +3,7 @@
 
 #include <QMouseEvent>
 #include <QPainter>
+#include <QPushButton>
 
 #include <algorithm>
 #include <cmath>
@@ -15,12 +16,34 @@ namespace umbra::ui {
 TopView::TopView(CaseController* controller, QWidget* parent) : QWidget(parent), ctl_(controller) {
     setMinimumSize(200, 140);
     setCursor(Qt::PointingHandCursor);
+    setToolTip(tr("Peak amplitude over the depth gate for every frame: x across, scan position down. "
+                  "Click or drag to pick a frame."));
+    finish_ = new QPushButton(tr("Finish top view"), this);
+    finish_->setObjectName(QStringLiteral("finishTopView"));
+    finish_->setToolTip(tr("Beamform the frames the top view still lacks (the run was stopped)"));
+    finish_->setCursor(Qt::ArrowCursor);
+    finish_->hide();
+    connect(finish_, &QPushButton::clicked, ctl_, &CaseController::finishTopView);
+    connect(ctl_, &CaseController::topViewChanged, this, &TopView::updateFinishButton);
+    connect(ctl_, &CaseController::captureChanged, this, &TopView::updateFinishButton);
+    connect(ctl_, &CaseController::busyChanged, this, &TopView::updateFinishButton);
     connect(ctl_, &CaseController::topViewChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::frameChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::captureChanged, this, qOverload<>(&QWidget::update));
 }
 
 QRectF TopView::plotRect() const { return QRectF(rect()).adjusted(54, 24, -12, -26); }
+
+void TopView::updateFinishButton() {
+    const bool show = ctl_->topViewIncomplete() && !ctl_->isBusy();
+    if (show) {
+        finish_->adjustSize();
+        finish_->move(width() - finish_->width() - 8, 2);
+    }
+    finish_->setVisible(show);
+}
+
+void TopView::resizeEvent(QResizeEvent*) { updateFinishButton(); }
 
 long TopView::frameAt(double y) const {
     const size_t n = ctl_->frameCount();
@@ -52,8 +75,10 @@ void TopView::paintEvent(QPaintEvent*) {
         return;
     }
     const size_t n = ctl_->frameCount();
-    p.drawText(QRectF(8, 2, width() - 16, 18), Qt::AlignLeft | Qt::AlignVCenter,
-               tr("Peak over depth %1–%2 mm · %3 of %4 frames beamformed · click to pick a frame")
+    const bool stopped = ctl_->topViewIncomplete();
+    const double right = finish_->isVisible() ? finish_->x() - 6 : width() - 8;
+    p.drawText(QRectF(8, 2, right - 8, 18), Qt::AlignLeft | Qt::AlignVCenter,
+               (stopped ? tr("Peak, depth %1–%2 mm · %3 of %4 frames (stopped)") : tr("Peak, depth %1–%2 mm · %3 of %4 frames"))
                    .arg(ctl_->topViewGateMm().first, 0, 'f', 1)
                    .arg(ctl_->topViewGateMm().second, 0, 'f', 1)
                    .arg(ctl_->topViewFramesDone())

@@ -104,10 +104,20 @@ QRectF ImageView::extentOfCurrentImage() const {
 void ImageView::onImageChanged() {
     const QRectF e = extentOfCurrentImage();
     if (!e.isNull() && e != last_extent_) {
+        // A new image of the same capture (re-beamformed with another grid): keep the scale
+        // (pixels per mm) and the centre the user chose, unless the view was at "fit".
+        const bool had_image = !last_extent_.isNull() && !pending_view_;
+        const bool was_fit = vt_.isFit();
+        const double scale = vt_.pixelsPerMm();
+        const QPointF centre = vt_.centreMm();
         vt_.setExtent(e.left(), e.right(), e.top(), e.bottom());
         updateLayout();
-        if (pending_view_ && pending_view_->zoom > 0 &&
-            !(pending_view_->centre_x_mm == 0 && pending_view_->centre_z_mm == 0 && pending_view_->zoom == 1)) {
+        if (had_image && !was_fit) {
+            vt_.setZoom(1.0);
+            vt_.setZoom(scale / vt_.pixelsPerMm());
+            vt_.setCentreMm(centre);
+        } else if (pending_view_ && pending_view_->zoom > 0 &&
+                   !(pending_view_->centre_x_mm == 0 && pending_view_->centre_z_mm == 0 && pending_view_->zoom == 1)) {
             vt_.setZoom(pending_view_->zoom);
             vt_.setCentreMm(QPointF(pending_view_->centre_x_mm, pending_view_->centre_z_mm));
         } else {
@@ -291,6 +301,19 @@ void ImageView::mousePressEvent(QMouseEvent* e) {
         update();
         return;
     }
+    // A drawing tool on a handle of a shown measurement moves the handle (only an empty spot
+    // starts a new measurement); bodies stay drawable-over so a box can be drawn inside a box.
+    if (auto h = hit(px); h && h->second >= 0) {
+        if (const auto* hm = ctl_->measurement(h->first)) {
+            ctl_->setSelectedMeasurement(QString::fromStdString(h->first));
+            drag_origin_ = *hm;
+            drag_m_ = *hm;
+            drag_index_ = h->second;
+            drag_ = Drag::Handle;
+            update();
+            return;
+        }
+    }
     // Creating a measurement.
     core::Measurement m;
     m.frame_index = ctl_->currentFrame();
@@ -315,7 +338,12 @@ void ImageView::mouseMoveEvent(QMouseEvent* e) {
     emit cursorMoved(mm, ctl_->hasImage() && vt_.viewport().contains(px) && extentOfCurrentImage().contains(mm));
     switch (drag_) {
         case Drag::None:
-            if (tool_ == Tool::Select) setCursor(hit(px) ? Qt::PointingHandCursor : (space_down_ ? Qt::OpenHandCursor : Qt::ArrowCursor));
+            if (tool_ == Tool::Select) {
+                setCursor(hit(px) ? Qt::PointingHandCursor : (space_down_ ? Qt::OpenHandCursor : Qt::ArrowCursor));
+            } else {
+                const auto h = hit(px);
+                setCursor(h && h->second >= 0 ? Qt::SizeAllCursor : Qt::CrossCursor);
+            }
             return;
         case Drag::Pan:
             vt_.panByPixels(px - last_px_);

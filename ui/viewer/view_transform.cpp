@@ -17,9 +17,22 @@ void ViewTransform::setExtent(double x0_mm, double x1_mm, double z0_mm, double z
 
 void ViewTransform::setZoom(double zoom) { zoom_ = std::clamp(zoom, kMinZoom, kMaxZoom); }
 
+QPointF ViewTransform::fitCentre() const {
+    // Centred across; the image's top (the array face side) at the top of the viewport, so no
+    // empty band of negative depth shows above it when the image is wider than the viewport.
+    const double fit = std::max(std::min(viewport_.width() / (x1_ - x0_), viewport_.height() / (z1_ - z0_)), 1e-9);
+    const double half_h_mm = viewport_.height() / (2 * fit);
+    return QPointF((x0_ + x1_) / 2, z0_ + half_h_mm);  // = the middle when the height limits the fit
+}
+
 void ViewTransform::fit() {
     zoom_ = 1;
-    centre_ = QPointF((x0_ + x1_) / 2, (z0_ + z1_) / 2);
+    centre_ = fitCentre();
+}
+
+bool ViewTransform::isFit() const {
+    const QPointF d = centre_ - fitCentre();
+    return zoom_ == 1 && std::abs(d.x()) + std::abs(d.y()) < 1e-9 * (1 + (x1_ - x0_) + (z1_ - z0_));
 }
 
 double ViewTransform::pixelsPerMm() const {

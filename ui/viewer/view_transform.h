@@ -22,8 +22,10 @@ public:
     QPointF centreMm() const { return centre_; }
     void setZoom(double zoom);
     void setCentreMm(const QPointF& c) { centre_ = c; }
-    /// Back to "whole image fits, centred".
+    /// Back to "whole image fits": centred across, its top at the top of the viewport.
     void fit();
+    /// True when the view is what fit() makes.
+    bool isFit() const;
 
     /// Widget pixels per mm (same for x and depth).
     double pixelsPerMm() const;
@@ -43,6 +45,7 @@ public:
     static constexpr double kMaxZoom = 200.0;
 
 private:
+    QPointF fitCentre() const;
     QRectF viewport_{0, 0, 100, 100};
     double x0_ = 0, x1_ = 1, z0_ = 0, z1_ = 1;
     double zoom_ = 1;
