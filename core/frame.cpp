@@ -10,6 +10,7 @@
 #include <string>
 #include <utility>
 
+#include "core/capture.h"
 #include "core/detail/h5.h"
 #include "core/error.h"
 
@@ -56,6 +57,18 @@ void writeImageFile(const std::string& path, const ImageStack& img) {
             writeFloats(g.get(), "envelope", img.envelope.data(), {img.frames, nz, nx});
             writeDoubles(g.get(), "x_m", img.x_m.data(), {nx});
             writeDoubles(g.get(), "z_m", img.z_m.data(), {nz});
+            if (!img.scan_position_m.empty()) {
+                if (img.scan_position_m.size() != img.frames) throw std::runtime_error("scan_position_m is not one per frame");
+                writeDoubles(g.get(), "scan_position_m", img.scan_position_m.data(), {img.frames});
+            }
+            const std::pair<const char*, const std::optional<double>*> opt[] = {
+                {"centre_frequency_hz", &img.centre_frequency_hz}, {"fractional_bandwidth", &img.fractional_bandwidth},
+                {"speed_of_sound_m_s", &img.speed_of_sound_m_s},   {"array_x_min_m", &img.array_x_min_m},
+                {"array_x_max_m", &img.array_x_max_m},             {"array_pitch_m", &img.array_pitch_m},
+                {"elevation_beam_width_m", &img.elevation_beam_width_m}};
+            for (const auto& [name, v] : opt)
+                if (*v) writeDoubleAttr(f.get(), name, **v);
+            if (img.wedge) writeIntAttr(f.get(), "wedge", 1);
         } catch (const std::exception& e) {
             f.reset();
             std::remove(partial.c_str());
@@ -111,9 +124,34 @@ ImageStack readImageFile(const std::string& path) {
         }
     }
     if (dims[0] == 0) throw InputError(path, "/image/envelope", "holds no frames");
+    const size_t e_frames = dims[0];
+    if (exists(f.get(), "/image/scan_position_m")) {
+        auto sp = readDoubles(f.get(), "/image/scan_position_m", 1, CaptureLimits::max_frames, dims, err);
+        if (!sp) throw InputError(path, "/image/scan_position_m", err);
+        if (sp->size() != e_frames) throw InputError(path, "/image/scan_position_m", "must hold one position per frame");
+        for (double v : *sp)
+            if (!std::isfinite(v)) throw InputError(path, "/image/scan_position_m", "non-finite scan position");
+        img.scan_position_m = std::move(*sp);
+    }
+    const std::pair<const char*, std::optional<double>*> opt[] = {
+        {"centre_frequency_hz", &img.centre_frequency_hz}, {"fractional_bandwidth", &img.fractional_bandwidth},
+        {"speed_of_sound_m_s", &img.speed_of_sound_m_s},   {"array_x_min_m", &img.array_x_min_m},
+        {"array_x_max_m", &img.array_x_max_m},             {"array_pitch_m", &img.array_pitch_m},
+        {"elevation_beam_width_m", &img.elevation_beam_width_m}};
+    for (const auto& [name, v] : opt) {
+        if (!attrExists(f.get(), name)) continue;
+        err.clear();
+        auto d = readDoubleAttr(f.get(), name, err);
+        if (!d || !std::isfinite(*d)) throw InputError(path, std::string("/@") + name, err.empty() ? "is not a finite number" : err);
+        *v = *d;
+    }
+    if (attrExists(f.get(), "wedge")) {
+        auto w = readIntAttr(f.get(), "wedge", err);
+        img.wedge = w && *w != 0;
+    }
     img.x_m = *x;
     img.z_m = *z;
-    img.frames = dims[0];
+    img.frames = e_frames;
     img.envelope = std::move(*e);
     return img;
 }

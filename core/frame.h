@@ -2,6 +2,7 @@
 #pragma once
 // One reconstructed image: linear envelope on an x-z grid, with the recipe that made it.
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -30,6 +31,15 @@ struct ImageStack {
     std::vector<float> envelope;  ///< [frames][N_z][N_x]
     std::string recipe_json;
     std::string capture_sha256;
+    /// Optional: scan position of each stored frame along the scan axis, m ([frames]; empty
+    /// when the capture records none). Dataset /image/scan_position_m.
+    std::vector<double> scan_position_m;
+    /// Optional acquisition facts for the point-spread model of the sizing tools (root
+    /// attributes of the same names; absent in files written before they existed).
+    std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
+    std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
+    std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
+    bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
     /// Frame i (0-based) as its own Frame; throws std::out_of_range when i >= frames.
     Frame frame(size_t i) const;
 };

@@ -2,6 +2,7 @@
 // umbra-cli reconstruct: capture -> image file (linear envelope after TCG) and optional PNGs.
 #include <unistd.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <fstream>
@@ -166,6 +167,21 @@ int cmdReconstruct(const Argv& argv) {
         stack.frames = frames.size();
         stack.recipe_json = recipe.toJson();
         stack.envelope.reserve(frames.size() * grid.nx() * grid.nz());
+        // Facts the sizing tools' point-spread model needs (optional attributes, docs/capture-format.md).
+        stack.centre_frequency_hz = h.array.centre_frequency_hz;
+        stack.fractional_bandwidth = h.array.fractional_bandwidth;
+        stack.speed_of_sound_m_s = h.medium.speed_of_sound_m_s;
+        if (!h.array.element_position_m.empty()) {
+            double lo = h.array.element_position_m[0][0], hi = lo;
+            for (const auto& p : h.array.element_position_m) lo = std::min(lo, p[0]), hi = std::max(hi, p[0]);
+            stack.array_x_min_m = lo;
+            stack.array_x_max_m = hi;
+            stack.array_pitch_m = h.array.pitch_m() > 0 ? h.array.pitch_m() : h.array.element_width_m;
+        }
+        stack.elevation_beam_width_m = h.array.elevation_beam_width_m;
+        stack.wedge = h.medium.wedge.has_value();
+        if (h.scan && h.scan->position_m.size() == h.frames)
+            for (size_t f : frames) stack.scan_position_m.push_back(h.scan->position_m[f]);
         std::vector<std::pair<std::string, double>> sums;
         double terms = 0, total = 0, executed = 0;
         const std::string title = (h.title.empty() ? path : h.title) + (h.isSynthetic() && h.title.find("synthetic") == std::string::npos ? " - synthetic demonstration data" : "");

@@ -13,6 +13,7 @@ int cmdInfo(const Argv& args);
 int cmdValidate(const Argv& args);
 int cmdSimulate(const Argv& args);
 int cmdReconstruct(const Argv& args);
+int cmdMeasure(const Argv& args);
 
 struct Command {
     const char* name;

@@ -15,6 +15,7 @@ const std::vector<Command>& commands() {
         {"validate", "check a capture against format v1; exit 2 listing each problem", cmdValidate},
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
+        {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
     };
     return table;
 }
