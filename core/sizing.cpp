@@ -55,7 +55,7 @@ double widthAtLevel(double w, double r) { return w * std::sqrt(std::log(1 / r) /
 /// Edge offset beyond the true edge of an extended reflector at ratio r (Gaussian edge model).
 double edgeOffset(double w, double r) { return erfcInv(2 * r) * w / (2 * std::sqrt(std::log(2.0))); }
 
-std::string dbText(double r) { return r == 0.5 ? "-6 dB" : r == 0.1 ? "-20 dB" : num(20 * std::log10(r), 1) + " dB"; }
+std::string dbText(double r) { return r == 0.5 ? "−6 dB" : r == 0.1 ? "−20 dB" : num(20 * std::log10(r), 1) + " dB"; }
 
 void checkImage(const std::vector<float>& amp, const std::vector<double>& x, const std::vector<double>& z) {
     if (amp.size() != x.size() * z.size())

@@ -2,7 +2,6 @@
 // umbra-cli reconstruct: capture -> image file (linear envelope after TCG) and optional PNGs.
 #include <unistd.h>
 
-#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <fstream>
@@ -14,6 +13,7 @@
 #include "core/capture_file.h"
 #include "core/error.h"
 #include "reconstruction/pipeline.h"
+#include "reconstruction/sizing_setup.h"
 #include "reconstruction/tgc_stage.h"
 
 namespace umbra::cli {
@@ -168,18 +168,15 @@ int cmdReconstruct(const Argv& argv) {
         stack.recipe_json = recipe.toJson();
         stack.envelope.reserve(frames.size() * grid.nx() * grid.nz());
         // Facts the sizing tools' point-spread model needs (optional attributes, docs/capture-format.md).
-        stack.centre_frequency_hz = h.array.centre_frequency_hz;
-        stack.fractional_bandwidth = h.array.fractional_bandwidth;
-        stack.speed_of_sound_m_s = h.medium.speed_of_sound_m_s;
-        if (!h.array.element_position_m.empty()) {
-            double lo = h.array.element_position_m[0][0], hi = lo;
-            for (const auto& p : h.array.element_position_m) lo = std::min(lo, p[0]), hi = std::max(hi, p[0]);
-            stack.array_x_min_m = lo;
-            stack.array_x_max_m = hi;
-            stack.array_pitch_m = h.array.pitch_m() > 0 ? h.array.pitch_m() : h.array.element_width_m;
-        }
-        stack.elevation_beam_width_m = h.array.elevation_beam_width_m;
-        stack.wedge = h.medium.wedge.has_value();
+        const recon::Acquisition acq = recon::acquisitionOf(h);
+        stack.centre_frequency_hz = acq.centre_frequency_hz;
+        stack.fractional_bandwidth = acq.fractional_bandwidth;
+        stack.speed_of_sound_m_s = acq.speed_of_sound_m_s;
+        stack.array_x_min_m = acq.array_x_min_m;
+        stack.array_x_max_m = acq.array_x_max_m;
+        stack.array_pitch_m = acq.array_pitch_m;
+        stack.elevation_beam_width_m = acq.elevation_beam_width_m;
+        stack.wedge = acq.wedge;
         if (h.scan && h.scan->position_m.size() == h.frames)
             for (size_t f : frames) stack.scan_position_m.push_back(h.scan->position_m[f]);
         std::vector<std::pair<std::string, double>> sums;

@@ -7,6 +7,8 @@
 #include <QCloseEvent>
 #include <QComboBox>
 #include <QDateTime>
+#include <QDialog>
+#include <QDialogButtonBox>
 #include <QDockWidget>
 #include <QDragEnterEvent>
 #include <QDropEvent>
@@ -19,6 +21,7 @@
 #include <QMenuBar>
 #include <QMessageBox>
 #include <QMimeData>
+#include <QPlainTextEdit>
 #include <QProgressBar>
 #include <QSlider>
 #include <QStatusBar>
@@ -27,6 +30,7 @@
 #include <QToolBar>
 #include <QToolButton>
 #include <QUndoStack>
+#include <QVBoxLayout>
 
 #include <cmath>
 #include <cstdio>
@@ -232,6 +236,10 @@ void MainWindow::buildActions() {
         {Tool::Ellipse, tr("&Ellipse"), QKeySequence(Qt::Key_E), tr("Centre and two axis ends: axes, area, circumference")},
         {Tool::DropSizing, tr("−6 dB &sizing"), QKeySequence(Qt::Key_S),
          tr("Box around an indication: length and height where the amplitude stays within 6 dB of its peak")},
+        {Tool::Drop20Sizing, tr("−&20 dB sizing"), QKeySequence(Qt::Key_G),
+         tr("Box around an indication: length and height within 20 dB of its peak, beam spread removed")},
+        {Tool::TipSizing, tr("&Tip sizing"), QKeySequence(Qt::Key_T),
+         tr("Box around a flaw's two tip echoes: marks both tips; height = their depth difference")},
     };
     for (const auto& t : list) {
         QAction* ta = tools->addAction(t.text);
@@ -244,6 +252,32 @@ void MainWindow::buildActions() {
         const Tool tool = t.t;
         connect(ta, &QAction::triggered, this, [this, tool] { setTool(tool); });
     }
+    tools->addSeparator();
+    a = tools->addAction(tr("Uncertainty &budget of selected measurement…"), this, [this] {
+        const QString id = ctl_->selectedMeasurement();
+        const QString text = ctl_->budgetText(id.toStdString());
+        if (text.isEmpty()) {
+            QMessageBox::information(this, tr("Uncertainty budget"), tr("Select a measurement first."));
+            return;
+        }
+        QDialog dlg(this);
+        dlg.setWindowTitle(tr("Uncertainty budget — %1").arg(id));
+        auto* lay = new QVBoxLayout(&dlg);
+        auto* view = new QPlainTextEdit(text, &dlg);
+        view->setReadOnly(true);
+        view->setObjectName(QStringLiteral("budgetText"));
+        view->setMinimumSize(620, 360);
+        lay->addWidget(view);
+        auto* close = new QDialogButtonBox(QDialogButtonBox::Close, &dlg);
+        connect(close, &QDialogButtonBox::rejected, &dlg, &QDialog::reject);
+        lay->addWidget(close);
+        dlg.exec();
+    });
+    a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_U));
+    a = tools->addAction(tr("Size the selected box tip to tip"), this, [this] {
+        ctl_->changeSizingKind(ctl_->selectedMeasurement().toStdString(), core::MeasurementKind::TipSizing);
+    });
+    a->setToolTip(tr("Turns the selected −6 dB or −20 dB box into tip sizing (offered when the box holds two or more peaks)"));
     tools->addSeparator();
     a = tools->addAction(tr("Add &finding from selected measurement"), this, &MainWindow::addFindingFromSelection);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_F));
