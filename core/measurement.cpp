@@ -225,7 +225,7 @@ std::optional<MeasurementKind> kindFromName(const std::string& name) {
 std::string formatQuantity(const Quantity& q) {
     const Rounded r = roundToUncertainty(q.value, kCoverageFactor * q.uncertainty);
     const std::string unit = q.unit.empty() ? "" : " " + q.unit;
-    if (q.upper_bound) return "≤ " + r.value_text + unit + " (resolution-limited)";
+    if (q.upper_bound) return "≤ " + r.value_text + unit;  // resolution-limited: the budget view says why
     return r.value_text + " ± " + r.uncertainty_text + unit;
 }
 

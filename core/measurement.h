@@ -92,7 +92,7 @@ std::string kindName(MeasurementKind kind);
 std::optional<MeasurementKind> kindFromName(const std::string& name);
 
 /// "12.34 ± 0.24 mm": value ± expanded uncertainty U = 2·u (k = 2), rounded together by
-/// roundToUncertainty (GUM 7.2.6); an upper bound reads "≤ 1.89 mm (resolution-limited)".
+/// roundToUncertainty (GUM 7.2.6); an upper bound (resolution-limited) reads "≤ 1.89 mm".
 std::string formatQuantity(const Quantity& q);
 /// The quantity as a MeasuredValue (for budget views and exports).
 MeasuredValue toMeasured(const Quantity& q);

@@ -55,7 +55,8 @@ int cmdMeasure(const Argv& argv) {
                             "length along the scan axis of an encoded scan. Each value has an expanded uncertainty (k = 2) from\n"
                             "a budget after JCGM 100:2008 and is rounded to it; an extent within 1.2x the point-spread width is\n"
                             "flagged resolution-limited (an upper bound). A sizing aid: codes, written procedures and qualified\n"
-                            "personnel decide on acceptance. Exit 2 for bad input.",
+                            "personnel decide on acceptance. Exit 2 for bad input (file, box, options); exit 1 when\n"
+                            "nothing could be sized (e.g. no pair of tip echoes in the box).",
                             specs)
                        .c_str(),
                    stdout);
