@@ -61,14 +61,15 @@ void writeImageFile(const std::string& path, const ImageStack& img) {
                 if (img.scan_position_m.size() != img.frames) throw std::runtime_error("scan_position_m is not one per frame");
                 writeDoubles(g.get(), "scan_position_m", img.scan_position_m.data(), {img.frames});
             }
+            const auto& a = img.acquisition;
             const std::pair<const char*, const std::optional<double>*> opt[] = {
-                {"centre_frequency_hz", &img.centre_frequency_hz}, {"fractional_bandwidth", &img.fractional_bandwidth},
-                {"speed_of_sound_m_s", &img.speed_of_sound_m_s},   {"array_x_min_m", &img.array_x_min_m},
-                {"array_x_max_m", &img.array_x_max_m},             {"array_pitch_m", &img.array_pitch_m},
-                {"elevation_beam_width_m", &img.elevation_beam_width_m}};
+                {"centre_frequency_hz", &a.centre_frequency_hz}, {"fractional_bandwidth", &a.fractional_bandwidth},
+                {"speed_of_sound_m_s", &a.speed_of_sound_m_s},   {"array_x_min_m", &a.array_x_min_m},
+                {"array_x_max_m", &a.array_x_max_m},             {"array_pitch_m", &a.array_pitch_m},
+                {"elevation_beam_width_m", &a.elevation_beam_width_m}};
             for (const auto& [name, v] : opt)
                 if (*v) writeDoubleAttr(f.get(), name, **v);
-            if (img.wedge) writeIntAttr(f.get(), "wedge", 1);
+            if (a.wedge) writeIntAttr(f.get(), "wedge", 1);
         } catch (const std::exception& e) {
             f.reset();
             std::remove(partial.c_str());
@@ -133,11 +134,12 @@ ImageStack readImageFile(const std::string& path) {
             if (!std::isfinite(v)) throw InputError(path, "/image/scan_position_m", "non-finite scan position");
         img.scan_position_m = std::move(*sp);
     }
+    auto& acq = img.acquisition;
     const std::pair<const char*, std::optional<double>*> opt[] = {
-        {"centre_frequency_hz", &img.centre_frequency_hz}, {"fractional_bandwidth", &img.fractional_bandwidth},
-        {"speed_of_sound_m_s", &img.speed_of_sound_m_s},   {"array_x_min_m", &img.array_x_min_m},
-        {"array_x_max_m", &img.array_x_max_m},             {"array_pitch_m", &img.array_pitch_m},
-        {"elevation_beam_width_m", &img.elevation_beam_width_m}};
+        {"centre_frequency_hz", &acq.centre_frequency_hz}, {"fractional_bandwidth", &acq.fractional_bandwidth},
+        {"speed_of_sound_m_s", &acq.speed_of_sound_m_s},   {"array_x_min_m", &acq.array_x_min_m},
+        {"array_x_max_m", &acq.array_x_max_m},             {"array_pitch_m", &acq.array_pitch_m},
+        {"elevation_beam_width_m", &acq.elevation_beam_width_m}};
     for (const auto& [name, v] : opt) {
         if (!attrExists(f.get(), name)) continue;
         err.clear();
@@ -147,7 +149,7 @@ ImageStack readImageFile(const std::string& path) {
     }
     if (attrExists(f.get(), "wedge")) {
         auto w = readIntAttr(f.get(), "wedge", err);
-        img.wedge = w && *w != 0;
+        acq.wedge = w && *w != 0;
     }
     img.x_m = *x;
     img.z_m = *z;

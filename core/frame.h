@@ -24,6 +24,15 @@ struct Frame {
     float peak() const;
 };
 
+/// Facts of the acquisition the sizing tools' point-spread model needs; any may be missing.
+struct AcquisitionFacts {
+    std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
+    std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
+    std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
+    bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
+    bool operator==(const AcquisitionFacts&) const = default;
+};
+
 /// A reconstructed image file (format "image", version 1): several frames on one grid.
 struct ImageStack {
     std::vector<double> x_m, z_m;
@@ -36,10 +45,7 @@ struct ImageStack {
     std::vector<double> scan_position_m;
     /// Optional acquisition facts for the point-spread model of the sizing tools (root
     /// attributes of the same names; absent in files written before they existed).
-    std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
-    std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
-    std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
-    bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
+    AcquisitionFacts acquisition;
     /// Frame i (0-based) as its own Frame; throws std::out_of_range when i >= frames.
     Frame frame(size_t i) const;
 };

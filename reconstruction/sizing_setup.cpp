@@ -9,18 +9,7 @@
 
 namespace umbra::recon {
 
-Acquisition acquisitionOf(const core::ImageStack& img) {
-    Acquisition a;
-    a.centre_frequency_hz = img.centre_frequency_hz;
-    a.fractional_bandwidth = img.fractional_bandwidth;
-    a.speed_of_sound_m_s = img.speed_of_sound_m_s;
-    a.array_x_min_m = img.array_x_min_m;
-    a.array_x_max_m = img.array_x_max_m;
-    a.array_pitch_m = img.array_pitch_m;
-    a.elevation_beam_width_m = img.elevation_beam_width_m;
-    a.wedge = img.wedge;
-    return a;
-}
+Acquisition acquisitionOf(const core::ImageStack& img) { return img.acquisition; }
 
 Acquisition acquisitionOf(const core::CaptureHeader& h) {
     Acquisition a;

@@ -16,12 +16,7 @@
 namespace umbra::recon {
 
 /// Acquisition facts the point-spread model needs; any may be missing (older image files).
-struct Acquisition {
-    std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
-    std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;
-    std::optional<double> elevation_beam_width_m;
-    bool wedge = false;
-};
+using Acquisition = core::AcquisitionFacts;
 /// From an image file's optional attributes.
 Acquisition acquisitionOf(const core::ImageStack& img);
 /// From a capture header.

@@ -168,15 +168,7 @@ int cmdReconstruct(const Argv& argv) {
         stack.recipe_json = recipe.toJson();
         stack.envelope.reserve(frames.size() * grid.nx() * grid.nz());
         // Facts the sizing tools' point-spread model needs (optional attributes, docs/capture-format.md).
-        const recon::Acquisition acq = recon::acquisitionOf(h);
-        stack.centre_frequency_hz = acq.centre_frequency_hz;
-        stack.fractional_bandwidth = acq.fractional_bandwidth;
-        stack.speed_of_sound_m_s = acq.speed_of_sound_m_s;
-        stack.array_x_min_m = acq.array_x_min_m;
-        stack.array_x_max_m = acq.array_x_max_m;
-        stack.array_pitch_m = acq.array_pitch_m;
-        stack.elevation_beam_width_m = acq.elevation_beam_width_m;
-        stack.wedge = acq.wedge;
+        stack.acquisition = recon::acquisitionOf(h);
         if (h.scan && h.scan->position_m.size() == h.frames)
             for (size_t f : frames) stack.scan_position_m.push_back(h.scan->position_m[f]);
         std::vector<std::pair<std::string, double>> sums;

@@ -17,6 +17,7 @@
 
 #include "core/capture_file.h"
 #include "core/sizing.h"
+#include "../simulate/sim_test_util.h"
 #include "recon_test_util.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/simulate/scene.h"
@@ -27,18 +28,16 @@ using namespace umbra;
 
 namespace {
 
+// A small steel scene: 32 elements at 0.6 mm, 5 MHz, 60 % bandwidth, 18 mm deep, noise 30 dB
+// below the peak.
 nlohmann::json baseScene() {
-    return nlohmann::json::parse(R"JSON({
-      "title": "sizing coverage scene (synthetic)",
-      "scenario": "unit_test",
-      "seed": 11,
-      "array": {"elements": 32, "pitch_mm": 0.6, "element_width_mm": 0.5,
-                "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6},
-      "transmit": {"kind": "single_element"},
-      "sampling": {"frequency_mhz": 50, "max_depth_mm": 18},
-      "medium": {"speed_m_s": 5920},
-      "noise": {"snr_db": 30, "reference": "peak"}
-    })JSON");
+    auto j = simtest::baseScene();
+    j["title"] = "sizing coverage scene (synthetic)";
+    j["seed"] = 11;
+    j["array"]["elements"] = 32;
+    j["sampling"] = {{"frequency_mhz", 50}, {"max_depth_mm", 18}};
+    j["noise"] = {{"snr_db", 30}, {"reference", "peak"}};
+    return j;
 }
 
 std::string simulateScene(const nlohmann::json& j, const std::string& name) {
