@@ -23,13 +23,7 @@ using umbra::ui::MainWindow;
 using umbra::ui::test::waitUntil;
 
 namespace {
-MainWindow::Options quiet() {
-    MainWindow::Options o;
-    o.interactive = false;
-    o.recovery = MainWindow::Recovery::Ignore;
-    o.autosave_seconds = 3600;
-    return o;
-}
+MainWindow::Options quiet() { return ui::test::quietOptions(); }
 core::Measurement box(core::MeasurementKind k, double x0, double z0, double x1, double z1) {
     core::Measurement m;
     m.kind = k;

@@ -21,16 +21,9 @@ using umbra::ui::MainWindow;
 using umbra::ui::test::waitUntil;
 
 namespace {
-MainWindow::Options quiet() {
-    MainWindow::Options o;
-    o.interactive = false;
-    o.recovery = MainWindow::Recovery::Ignore;
-    o.autosave_seconds = 3600;
-    return o;
-}
 /// A workstation with the synthetic point capture (`frames` frames) open and its image ready.
 struct Open {
-    MainWindow w{quiet()};
+    MainWindow w{ui::test::quietOptions()};
     ui::CaseController* ctl = w.controller();
     explicit Open(size_t frames) {
         const QString cap = ui::test::tempDir() + QStringLiteral("/point_%1.h5").arg(frames);

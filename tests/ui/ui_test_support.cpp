@@ -15,6 +15,14 @@
 
 namespace umbra::ui::test {
 
+MainWindow::Options quietOptions() {
+    MainWindow::Options o;
+    o.interactive = false;
+    o.recovery = MainWindow::Recovery::Ignore;
+    o.autosave_seconds = 3600;
+    return o;
+}
+
 void writePointCapture(const std::string& path, size_t elements, size_t frames) {
     core::CaptureHeader h;
     h.title = "UI test: one point reflector (synthetic)";

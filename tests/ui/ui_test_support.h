@@ -4,10 +4,15 @@
 // (independent of the demo samples) and a way to wait for the controller's worker.
 #include <QString>
 
+#include "ui/main/main_window.h"
+
 #include <functional>
 #include <string>
 
 namespace umbra::ui::test {
+
+/// Options of a workstation for tests: not interactive, no recovery, no autosave.
+MainWindow::Options quietOptions();
 
 /// Writes a full-matrix capture: `elements` elements at 0.6 mm pitch, 5 MHz, 1540 m/s, one point
 /// reflector at x = 0, depth 10 mm, `frames` frames (scan positions 0, 1, 2 ... mm when
