@@ -60,6 +60,11 @@ struct CaseDocument {
     size_t active_capture = 0;
     std::vector<Finding> findings;
     std::optional<AmplitudeReference> amplitude_reference;  ///< unset: amplitudes re frame peak
+    /// Sizing: medium of the speed-of-sound default ("steel", "water", "soft tissue", "other";
+    /// "" = guessed from the speed) and the case's relative standard uncertainty of the speed
+    /// (unset = the medium's default; core/uncertainty.h).
+    std::string sizing_medium;
+    std::optional<double> speed_uncertainty_rel;
     bool operator==(const CaseDocument&) const = default;
 };
 

@@ -701,7 +701,10 @@ const recon::SizingSetup* CaseController::sizingSetup() const {
     if (!envelope_ || !reader_ || tgc_amp_.size() != envelope_->nx() * envelope_->nz()) return nullptr;
     if (!sizing_setup_) {
         try {
-            sizing_setup_ = recon::sizingSetup(recipe_, recon::acquisitionOf(reader_->header()), tgc_amp_);
+            recon::SizingSettings settings;
+            settings.medium = doc_.sizing_medium;
+            settings.speed_rel = doc_.speed_uncertainty_rel;
+            sizing_setup_ = recon::sizingSetup(recipe_, recon::acquisitionOf(reader_->header()), tgc_amp_, settings);
         } catch (const std::exception&) {
             return nullptr;
         }
@@ -754,6 +757,26 @@ std::optional<CaseController::TopViewMeasure> CaseController::topViewMeasure(dou
     } catch (const std::exception&) {
     }
     return out;
+}
+
+void CaseController::setSpeedUncertainty(const std::string& medium, std::optional<double> relative) {
+    using Setting = std::pair<std::string, std::optional<double>>;
+    const Setting before{doc_.sizing_medium, doc_.speed_uncertainty_rel}, after{medium, relative};
+    if (before == after) return;
+    undo_.push(new ValueCommand<Setting>(tr("Set speed-of-sound uncertainty"), before, after, [this](const Setting& v) {
+        doc_.sizing_medium = v.first;
+        doc_.speed_uncertainty_rel = v.second;
+        sizing_setup_.reset();
+        markDirty();
+        emit measurementsChanged();  // every value's budget changes
+        emit imageChanged();
+    }));
+}
+
+std::pair<std::string, double> CaseController::speedUncertainty() const {
+    if (const auto* s = sizingSetup()) return {s->medium, s->context.speed_rel};
+    const std::string m = doc_.sizing_medium.empty() ? "other" : doc_.sizing_medium;
+    return {m, doc_.speed_uncertainty_rel.value_or(core::speedUncertaintyDefault(m).relative)};
 }
 
 QString CaseController::budgetText(const std::string& id) const {

@@ -203,6 +203,11 @@ public:
     /// Turns an image-sizing measurement into another sizing kind (e.g. a −6 dB box that holds
     /// two peaks into tip sizing), as one undoable edit.
     void changeSizingKind(const std::string& id, core::MeasurementKind kind);
+    /// Sets the case's medium for the speed-of-sound default ("" = guessed from the speed) and its
+    /// relative standard uncertainty of the speed (unset = the medium's default); undoable.
+    void setSpeedUncertainty(const std::string& medium, std::optional<double> relative);
+    /// The medium and relative speed uncertainty in use (after defaults).
+    std::pair<std::string, double> speedUncertainty() const;
     /// The sizing context of the current frame (point-spread model, speed uncertainty, noise).
     const recon::SizingSetup* sizingSetup() const;
 

@@ -274,6 +274,22 @@ void MainWindow::buildActions() {
         dlg.exec();
     });
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_U));
+    a = tools->addAction(tr("Speed-of-sound &uncertainty…"), this, [this] {
+        const auto [medium, rel] = ctl_->speedUncertainty();
+        const QStringList media{tr("guess from the speed"), "steel", "water", "soft tissue", "other"};
+        bool ok = false;
+        const QString m = QInputDialog::getItem(this, tr("Speed-of-sound uncertainty"),
+                                                tr("Medium (sets the default; now %1):").arg(QString::fromStdString(medium)), media, 0, false, &ok);
+        if (!ok) return;
+        const std::string med = m == media[0] ? std::string() : m.toStdString();
+        const double def = core::speedUncertaintyDefault(med.empty() ? medium : med).relative * 100;
+        const double pct = QInputDialog::getDouble(this, tr("Speed-of-sound uncertainty"),
+                                                   tr("Relative standard uncertainty of the speed of sound, % (default %1 %):").arg(def),
+                                                   def, 0.0, 50.0, 2, &ok);
+        if (!ok) return;
+        ctl_->setSpeedUncertainty(med, std::abs(pct - def) < 1e-9 ? std::nullopt : std::optional<double>(pct / 100));
+    });
+    a->setToolTip(tr("The case's relative uncertainty of the speed of sound, used in every depth's uncertainty budget"));
     a = tools->addAction(tr("Size the selected box tip to tip"), this, [this] {
         ctl_->changeSizingKind(ctl_->selectedMeasurement().toStdString(), core::MeasurementKind::TipSizing);
     });
