@@ -71,6 +71,13 @@ TEST(sizing_tools_test, point_is_resolution_limited_budget_listed_and_finding_ro
     EXPECT_FALSE(t->found);
     ctl->undoStack()->undo();
     EXPECT_EQ(ctl->measurement(id)->kind, core::MeasurementKind::DropSizing);
+    // The case's speed-of-sound uncertainty enters the budget (1540 m/s: soft tissue by default).
+    EXPECT_EQ(ctl->speedUncertainty().first, "soft tissue");
+    ctl->setSpeedUncertainty("water", 0.02);
+    EXPECT_EQ(ctl->speedUncertainty(), (std::pair<std::string, double>{"water", 0.02}));
+    EXPECT_TRUE(ctl->budgetText(id).contains("set for this case"));
+    ctl->undoStack()->undo();
+    EXPECT_EQ(ctl->speedUncertainty().first, "soft tissue");
 }
 
 TEST(sizing_tools_test, finding_marked_out_of_date_until_accepted) {
