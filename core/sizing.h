@@ -23,6 +23,8 @@
 // resolution-limited: the value is reported as an upper bound (the true size may be smaller).
 // Budget components (standard uncertainties, see docs/findings.md "Sizing and uncertainty"):
 //  * resolution (edge placement): rectangular ±W/4 per edge, W the −6 dB point-spread width there;
+//  * tip echo position (tips tool): rectangular ±W/4 per tip, for the displacement of tip echoes
+//    by interference with the flaw face and the other tip;
 //  * grid step: rectangular over one pixel, step/√12 per edge or per peak position;
 //  * noise: edge shift noise/slope with the Gaussian edge slope 2 ln2·peak/W at half height; peak
 //    position σ·noise/peak (σ = W/(2√(2 ln 2))); noise = the frame's median envelope;
