@@ -71,6 +71,8 @@ std::vector<Problem> checkHeader(const CaptureHeader& h) {
         add("/array@element_width_m", "must be a finite width in (0, 1] m");
     if (h.array.element_height_m && (!finite(*h.array.element_height_m) || *h.array.element_height_m <= 0))
         add("/array@element_height_m", "must be finite and positive");
+    if (h.array.elevation_beam_width_m && (!finite(*h.array.elevation_beam_width_m) || *h.array.elevation_beam_width_m <= 0))
+        add("/array@elevation_beam_width_m", "must be finite and positive");
 
     const size_t ntx = h.transmit.count();
     if (ntx == 0) add("/transmit", "the transmit list is empty");

@@ -26,6 +26,9 @@ struct ArrayInfo {
     double fractional_bandwidth = 0;      ///< -6 dB bandwidth / centre frequency
     double element_width_m = 0;           ///< active width along x
     std::optional<double> element_height_m;
+    /// Optional: −6 dB full width of the elevation beam (across the image plane, along the scan
+    /// axis of an encoded scan), m; used for sizing along the scan axis.
+    std::optional<double> elevation_beam_width_m;
     size_t elementCount() const { return element_position_m.size(); }
     /// Mean spacing of neighbouring elements along x, m (0 for a single element).
     double pitch_m() const;

@@ -90,6 +90,9 @@ void parseHeader(hid_t file, HeaderParse& out) {
         if (!w) add("/array@element_width_m", err.empty() ? "is missing" : err); else h.array.element_width_m = *w;
         auto eh = readDoubleAttr(g.get(), "element_height_m", err);
         if (eh) h.array.element_height_m = *eh; else if (!err.empty()) add("/array@element_height_m", err);
+        err.clear();
+        auto ew = readDoubleAttr(g.get(), "elevation_beam_width_m", err);
+        if (ew) h.array.elevation_beam_width_m = *ew; else if (!err.empty()) add("/array@elevation_beam_width_m", err);
     }
 
     // Transmit
@@ -390,6 +393,7 @@ CaptureWriter::CaptureWriter(const std::string& path, const CaptureHeader& heade
             writeDoubleAttr(g.get(), "fractional_bandwidth", h.array.fractional_bandwidth);
             writeDoubleAttr(g.get(), "element_width_m", h.array.element_width_m);
             if (h.array.element_height_m) writeDoubleAttr(g.get(), "element_height_m", *h.array.element_height_m);
+            if (h.array.elevation_beam_width_m) writeDoubleAttr(g.get(), "elevation_beam_width_m", *h.array.elevation_beam_width_m);
         }
         {
             Hid g = createGroup(f, "transmit");

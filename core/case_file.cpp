@@ -391,6 +391,12 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
         cj["points"] = pts;
         j["distance_amplitude_curve"] = cj;
     }
+    if (!doc.sizing_medium.empty() || doc.speed_uncertainty_rel) {
+        json sj = json::object();
+        if (!doc.sizing_medium.empty()) sj["medium"] = doc.sizing_medium;
+        if (doc.speed_uncertainty_rel) sj["speed_uncertainty_rel"] = *doc.speed_uncertainty_rel;
+        j["sizing"] = sj;
+    }
     // Invalid UTF-8 in a user text is replaced (U+FFFD) rather than failing the save.
     return j.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
 }
@@ -470,6 +476,21 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
         if (doc.curve->points.empty()) doc.curve.reset();  // no points: no reference, as if absent
     } else if (j.contains("amplitude_reference") && !j["amplitude_reference"].is_null()) {
         doc.curve = readLegacyReference(r, j["amplitude_reference"], "amplitude_reference");
+    }
+    if (j.contains("sizing") && !j["sizing"].is_null()) {
+        const std::string p = "sizing";
+        const json& sj = r.object(j[p], p);
+        if (sj.contains("medium")) {
+            doc.sizing_medium = r.text(sj, p, "medium");
+            if (doc.sizing_medium != "steel" && doc.sizing_medium != "water" && doc.sizing_medium != "soft tissue" &&
+                doc.sizing_medium != "other")
+                r.fail(Reader::key(p, "medium"), "must be steel, water, soft tissue or other");
+        }
+        if (sj.contains("speed_uncertainty_rel")) {
+            const double v = r.numberValue(sj["speed_uncertainty_rel"], Reader::key(p, "speed_uncertainty_rel"));
+            if (!(v >= 0 && v <= 0.5)) r.fail(Reader::key(p, "speed_uncertainty_rel"), "must be in [0, 0.5]");
+            doc.speed_uncertainty_rel = v;
+        }
     }
     return doc;
 }

@@ -50,6 +50,11 @@ struct CaseDocument {
     /// readout are given in dB re this curve at their depth. Unset: dB re the frame's peak.
     /// (A file with the older single `amplitude_reference` loads as a one-point curve.)
     std::optional<DistanceAmplitudeCurve> curve;
+    /// Sizing: medium of the speed-of-sound default ("steel", "water", "soft tissue", "other";
+    /// "" = guessed from the speed) and the case's relative standard uncertainty of the speed
+    /// (unset = the medium's default; core/uncertainty.h).
+    std::string sizing_medium;
+    std::optional<double> speed_uncertainty_rel;
     bool operator==(const CaseDocument&) const = default;
 };
 

@@ -71,22 +71,4 @@ DropSizing dropSize(const std::vector<float>& amplitude, const std::vector<doubl
     return s;
 }
 
-std::vector<Quantity> dropSizingQuantities(const DropSizing& s, const UncertaintyModel& u) {
-    if (!s.found) return {};
-    auto make = [](std::string name, double v, double reading, double speed) {
-        Quantity q;
-        q.name = std::move(name);
-        q.value = v;
-        q.unit = "mm";
-        q.reading_part = reading;
-        q.speed_part = speed;
-        q.uncertainty = std::hypot(reading, speed);
-        return q;
-    };
-    const double two_edges = std::sqrt(2.0) * 0.5;  // two independent edges, half a pixel each
-    return {make("length −6 dB", s.lengthMm(), two_edges * u.pixel_x_mm, 0.0),
-            make("height −6 dB", s.heightMm(), two_edges * u.pixel_z_mm, std::abs(s.heightMm()) * u.speed_rel),
-            make("peak depth", s.peak_z_mm - u.surface_z_mm, 0.5 * u.pixel_z_mm, std::abs(s.peak_z_mm - u.surface_z_mm) * u.speed_rel)};
-}
-
 }  // namespace umbra::core

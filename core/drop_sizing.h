@@ -42,10 +42,7 @@ struct DropSizing {
 DropSizing dropSize(const std::vector<float>& amplitude, const std::vector<double>& x_mm,
                     const std::vector<double>& z_mm, PointMm a, PointMm b, double ratio = kSixDbDropRatio);
 
-/// Quantities of a drop sizing, mm, with uncertainty as for the other tools: each edge is read to
-/// half a pixel (two edges per extent, combined root-sum-square), and the assumed speed of sound
-/// scales depths (height and peak depth) by `u.speed_rel`; lateral length has no speed part.
-/// Names: "length −6 dB", "height −6 dB", "peak depth". Empty when !s.found.
-std::vector<Quantity> dropSizingQuantities(const DropSizing& s, const UncertaintyModel& u);
+/// Values with uncertainty budgets, the −20 dB and tip tools and the resolution-limited flag:
+/// core/sizing.h, which builds on dropSize.
 
 }  // namespace umbra::core

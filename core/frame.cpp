@@ -10,6 +10,7 @@
 #include <string>
 #include <utility>
 
+#include "core/capture.h"
 #include "core/detail/h5.h"
 #include "core/error.h"
 
@@ -48,6 +49,8 @@ struct ImageWriter::Impl {
     size_t nx = 0, nz = 0;
     std::string partial;
     std::string sha256;
+    std::vector<double> scan_position_m;
+    AcquisitionFacts acquisition;
     bool finished = false;
 };
 
@@ -119,6 +122,8 @@ void ImageWriter::append(const float* envelope, size_t count) {
 }
 
 void ImageWriter::setCaptureSha256(const std::string& sha256) { impl_->sha256 = sha256; }
+void ImageWriter::setScanPositions(const std::vector<double>& scan_position_m) { impl_->scan_position_m = scan_position_m; }
+void ImageWriter::setAcquisition(const AcquisitionFacts& facts) { impl_->acquisition = facts; }
 
 void ImageWriter::finish() {
     Impl& I = *impl_;
@@ -127,8 +132,22 @@ void ImageWriter::finish() {
         std::lock_guard lock(hdf5Mutex());
         try {
             writeStringAttr(I.file.get(), "capture_sha256", I.sha256);
+            if (!I.scan_position_m.empty()) {
+                if (I.scan_position_m.size() != frames_) throw std::runtime_error("scan positions are not one per frame");
+                Hid g(H5Gopen2(I.file.get(), "image", H5P_DEFAULT));
+                writeDoubles(g.get(), "scan_position_m", I.scan_position_m.data(), {frames_});
+            }
+            const auto& a = I.acquisition;
+            const std::pair<const char*, const std::optional<double>*> opt[] = {
+                {"centre_frequency_hz", &a.centre_frequency_hz}, {"fractional_bandwidth", &a.fractional_bandwidth},
+                {"speed_of_sound_m_s", &a.speed_of_sound_m_s},   {"array_x_min_m", &a.array_x_min_m},
+                {"array_x_max_m", &a.array_x_max_m},             {"array_pitch_m", &a.array_pitch_m},
+                {"elevation_beam_width_m", &a.elevation_beam_width_m}};
+            for (const auto& [name, v] : opt)
+                if (*v) writeDoubleAttr(I.file.get(), name, **v);
+            if (a.wedge) writeIntAttr(I.file.get(), "wedge", 1);
         } catch (const std::exception& e) {
-            throw InputError(path_, "/@capture_sha256", e.what());
+            throw InputError(path_, "/", e.what());
         }
         I.envelope.reset();
         if (H5Fclose(I.file.get()) < 0) throw InputError(path_, "", "cannot finish writing the file (disk full?)");
@@ -146,6 +165,8 @@ void writeImageFile(const std::string& path, const ImageStack& img) {
     ImageWriter w(path, img.x_m, img.z_m, img.recipe_json);
     for (size_t i = 0; i < img.frames; ++i) w.append(img.envelope.data() + i * n, n);
     w.setCaptureSha256(img.capture_sha256);
+    w.setScanPositions(img.scan_position_m);
+    w.setAcquisition(img.acquisition);
     w.finish();
 }
 
@@ -198,9 +219,35 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
         }
     }
     if (dims[0] == 0) throw InputError(path, "/image/envelope", "holds no frames");
+    const size_t e_frames = dims[0];
+    if (exists(f.get(), "/image/scan_position_m")) {
+        auto sp = readDoubles(f.get(), "/image/scan_position_m", 1, CaptureLimits::max_frames, dims, err);
+        if (!sp) throw InputError(path, "/image/scan_position_m", err);
+        if (sp->size() != e_frames) throw InputError(path, "/image/scan_position_m", "must hold one position per frame");
+        for (double v : *sp)
+            if (!std::isfinite(v)) throw InputError(path, "/image/scan_position_m", "non-finite scan position");
+        img.scan_position_m = std::move(*sp);
+    }
+    auto& acq = img.acquisition;
+    const std::pair<const char*, std::optional<double>*> opt[] = {
+        {"centre_frequency_hz", &acq.centre_frequency_hz}, {"fractional_bandwidth", &acq.fractional_bandwidth},
+        {"speed_of_sound_m_s", &acq.speed_of_sound_m_s},   {"array_x_min_m", &acq.array_x_min_m},
+        {"array_x_max_m", &acq.array_x_max_m},             {"array_pitch_m", &acq.array_pitch_m},
+        {"elevation_beam_width_m", &acq.elevation_beam_width_m}};
+    for (const auto& [name, v] : opt) {
+        if (!attrExists(f.get(), name)) continue;
+        err.clear();
+        auto d = readDoubleAttr(f.get(), name, err);
+        if (!d || !std::isfinite(*d)) throw InputError(path, std::string("/@") + name, err.empty() ? "is not a finite number" : err);
+        *v = *d;
+    }
+    if (attrExists(f.get(), "wedge")) {
+        auto w = readIntAttr(f.get(), "wedge", err);
+        acq.wedge = w && *w != 0;
+    }
     img.x_m = *x;
     img.z_m = *z;
-    img.frames = dims[0];
+    img.frames = e_frames;
     return img;
 }
 }  // namespace

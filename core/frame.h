@@ -2,6 +2,7 @@
 #pragma once
 // One reconstructed image: linear envelope on an x-z grid, with the recipe that made it.
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -23,6 +24,15 @@ struct Frame {
     float peak() const;
 };
 
+/// Facts of the acquisition the sizing tools' point-spread model needs; any may be missing.
+struct AcquisitionFacts {
+    std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
+    std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
+    std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
+    bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
+    bool operator==(const AcquisitionFacts&) const = default;
+};
+
 /// A reconstructed image file (format "image", version 1): several frames on one grid.
 struct ImageStack {
     std::vector<double> x_m, z_m;
@@ -30,6 +40,12 @@ struct ImageStack {
     std::vector<float> envelope;  ///< [frames][N_z][N_x]
     std::string recipe_json;
     std::string capture_sha256;
+    /// Optional: scan position of each stored frame along the scan axis, m ([frames]; empty
+    /// when the capture records none). Dataset /image/scan_position_m.
+    std::vector<double> scan_position_m;
+    /// Optional acquisition facts for the point-spread model of the sizing tools (root
+    /// attributes of the same names; absent in files written before they existed).
+    AcquisitionFacts acquisition;
     /// Frame i (0-based) as its own Frame; throws std::out_of_range when i >= frames.
     Frame frame(size_t i) const;
 };
@@ -59,6 +75,11 @@ public:
     void append(const std::vector<float>& envelope) { append(envelope.data(), envelope.size()); }
     /// SHA-256 of the capture (lowercase hex), stored by finish().
     void setCaptureSha256(const std::string& sha256);
+    /// Scan position of each frame along the scan axis, m (one per appended frame; empty: none),
+    /// written by finish() as /image/scan_position_m.
+    void setScanPositions(const std::vector<double>& scan_position_m);
+    /// Acquisition facts for the sizing tools' point-spread model, written as root attributes.
+    void setAcquisition(const AcquisitionFacts& facts);
     size_t frames() const { return frames_; }
     /// Writes the remaining attributes, closes the file and renames it into place.
     void finish();

@@ -80,9 +80,15 @@ size_t pointCount(MeasurementKind kind) {
     case MeasurementKind::DepthMarker: return 1;
     case MeasurementKind::ExtentBox: return 2;
     case MeasurementKind::Ellipse: return 3;
-    case MeasurementKind::DropSizing: return 2;
+    case MeasurementKind::DropSizing:
+    case MeasurementKind::Drop20Sizing:
+    case MeasurementKind::TipSizing: return 2;
     }
     return 0;
+}
+
+bool isImageSizing(MeasurementKind kind) {
+    return kind == MeasurementKind::DropSizing || kind == MeasurementKind::Drop20Sizing || kind == MeasurementKind::TipSizing;
 }
 
 double ellipseCircumferenceRamanujan(double a, double b) {
@@ -112,20 +118,44 @@ std::vector<Quantity> evaluate(const Measurement& m, const UncertaintyModel& u) 
         p.push_back({x, z0 * (detail::constant(1) + k)});  // z relative to the surface, scaled
     }
 
+    // Placement standard uncertainty of each point along x and z.
+    std::vector<std::pair<double, double>> place(n), grid(n);
+    for (size_t i = 0; i < n; ++i) {
+        if (u.resolution) {
+            const auto [wl, wa] = u.resolution(m.points[i].x_mm, m.points[i].z_mm);
+            place[i] = {wl / (2 * std::sqrt(3.0)), wa / (2 * std::sqrt(3.0))};
+            grid[i] = {u.pixel_x_mm / std::sqrt(12.0), u.pixel_z_mm / std::sqrt(12.0)};
+        } else {
+            place[i] = {0.5 * u.pixel_x_mm, 0.5 * u.pixel_z_mm};
+        }
+    }
     auto make = [&](const std::string& name, const Dual& f, const std::string& unit) {
-        double reading2 = 0;
+        double place2 = 0, grid2 = 0;
         for (size_t i = 0; i < n; ++i) {
-            const double ux = f.d[2 * i] * 0.5 * u.pixel_x_mm;
-            const double uz = f.d[2 * i + 1] * 0.5 * u.pixel_z_mm;
-            reading2 += ux * ux + uz * uz;
+            const double px = f.d[2 * i] * place[i].first, pz = f.d[2 * i + 1] * place[i].second;
+            const double gx = f.d[2 * i] * grid[i].first, gz = f.d[2 * i + 1] * grid[i].second;
+            place2 += px * px + pz * pz;
+            grid2 += gx * gx + gz * gz;
         }
         Quantity q;
         q.name = name;
         q.value = f.v;
         q.unit = unit;
-        q.reading_part = std::sqrt(reading2);
+        q.reading_part = std::sqrt(place2 + grid2);
         q.speed_part = std::abs(f.d[k_index]) * u.speed_rel;
         q.uncertainty = std::hypot(q.reading_part, q.speed_part);
+        if (u.resolution) {
+            q.components.push_back({"resolution (point placement)",
+                                    "each point placed within +-W/2 of the echo edge (W: -6 dB point-spread width there), rectangular, "
+                                    "W/(2 sqrt(3)) per point and axis", std::sqrt(place2)});
+            q.components.push_back({"grid step", "pixel/sqrt(12) per point and axis", std::sqrt(grid2)});
+        } else {
+            q.components.push_back({"reading", "half a pixel per point and axis (point-spread widths unknown)", std::sqrt(place2)});
+        }
+        char pct[32];
+        std::snprintf(pct, sizeof pct, "%g", u.speed_rel * 100);
+        q.components.push_back({"speed of sound", std::string(pct) + " % of depth-like terms" + (u.speed_basis.empty() ? "" : " (" + u.speed_basis + ")"),
+                                q.speed_part});
         return q;
     };
 
@@ -138,7 +168,9 @@ std::vector<Quantity> evaluate(const Measurement& m, const UncertaintyModel& u) 
         Quantity d = make("distance", detail::hypot(dx, dz), "mm");
         if (d.value == 0) {  // gradient undefined at zero length: use the axis-wise bound
             d.reading_part = std::hypot(out[0].reading_part, out[1].reading_part);
+            d.speed_part = 0;
             d.uncertainty = d.reading_part;
+            d.components = {{"reading", "zero length: the axis-wise placement bound", d.reading_part}};
         }
         out.push_back(d);
         break;
@@ -148,6 +180,8 @@ std::vector<Quantity> evaluate(const Measurement& m, const UncertaintyModel& u) 
         break;
     case MeasurementKind::ExtentBox:
     case MeasurementKind::DropSizing:
+    case MeasurementKind::Drop20Sizing:
+    case MeasurementKind::TipSizing:
         out.push_back(make("length", detail::abs(p[1].x - p[0].x), "mm"));
         out.push_back(make("height", detail::abs(p[1].z - p[0].z), "mm"));
         break;
@@ -174,52 +208,49 @@ std::string kindName(MeasurementKind kind) {
     case MeasurementKind::ExtentBox: return "extent box";
     case MeasurementKind::Ellipse: return "ellipse";
     case MeasurementKind::DropSizing: return "-6 dB sizing";
+    case MeasurementKind::Drop20Sizing: return "-20 dB sizing";
+    case MeasurementKind::TipSizing: return "tip sizing";
     }
     return "unknown";
 }
 
 std::optional<MeasurementKind> kindFromName(const std::string& name) {
     for (auto k : {MeasurementKind::Caliper, MeasurementKind::DepthMarker, MeasurementKind::ExtentBox,
-                   MeasurementKind::Ellipse, MeasurementKind::DropSizing})
+                   MeasurementKind::Ellipse, MeasurementKind::DropSizing, MeasurementKind::Drop20Sizing, MeasurementKind::TipSizing})
         if (kindName(k) == name) return k;
     return std::nullopt;
 }
 
-namespace {
-
-// Decimal exponent of the rounding step for an uncertainty: its first significant digit (the
-// first two when that digit is 1), never finer than 0.01 (exponent −2).
-int stepExponent(double u) {
-    if (!(u > 0) || !std::isfinite(u)) return -2;
-    int e = static_cast<int>(std::floor(std::log10(u)));
-    double lead = u / std::pow(10.0, e);
-    if (lead >= 9.5) {  // rounds up to the next decade
-        ++e;
-        lead = 1;
-    }
-    if (lead < 1.95) --e;  // leading digit 1: keep two digits
-    return std::max(e, -2);
-}
-
-std::string fixed(double v, int decimals) {
-    if (std::abs(v) < 0.5 * std::pow(10.0, -decimals)) v = 0;  // no "-0.00"
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.*f", decimals, v + 0.0);
-    return buf;
-}
-
-}  // namespace
 
 std::string formatQuantity(const Quantity& q) {
-    const int e = stepExponent(q.uncertainty);
-    const double step = std::pow(10.0, e);
-    const int decimals = std::max(0, -e);
-    const double v = std::round(q.value / step) * step;
-    double un = std::round(q.uncertainty / step) * step;
-    if (un < step && q.uncertainty > 0) un = step;
-    std::string s = fixed(v, decimals) + " ± " + fixed(un, decimals);
-    if (!q.unit.empty()) s += " " + q.unit;
-    return s;
+    const Rounded r = roundToUncertainty(q.value, kCoverageFactor * q.uncertainty);
+    const std::string unit = q.unit.empty() ? "" : " " + q.unit;
+    if (q.upper_bound) return "≤ " + r.value_text + unit;  // resolution-limited: the budget view says why
+    return r.value_text + " ± " + r.uncertainty_text + unit;
+}
+
+MeasuredValue toMeasured(const Quantity& q) {
+    MeasuredValue m{q.name, q.value, q.unit, {}, q.upper_bound};
+    m.budget.components = q.components;
+    if (m.budget.components.empty() && q.uncertainty > 0) m.budget.add("combined", "", q.uncertainty);
+    return m;
+}
+
+Quantity fromMeasured(const MeasuredValue& m) {
+    Quantity q;
+    q.name = m.name;
+    q.value = m.value;
+    q.unit = m.unit;
+    q.uncertainty = m.budget.combined();
+    q.components = m.budget.components;
+    q.upper_bound = m.upper_bound;
+    double rest = 0;
+    for (const auto& c : m.budget.components) {
+        if (c.name == "speed of sound") q.speed_part = c.standard;
+        else rest += c.standard * c.standard;
+    }
+    q.reading_part = std::sqrt(rest);
+    return q;
 }
 
 std::string formatQuantities(const std::vector<Quantity>& qs) {
@@ -231,26 +262,8 @@ std::string formatQuantities(const std::vector<Quantity>& qs) {
     return s;
 }
 
-std::string quantityTooltip(const Quantity& q, const UncertaintyModel& u) {
-    Quantity r = q, s = q;
-    r.uncertainty = q.reading_part;
-    s.uncertainty = q.speed_part;
-    auto part = [](const Quantity& x) {
-        const int e = stepExponent(x.uncertainty);
-        const double step = std::pow(10.0, e);
-        double un = std::round(x.uncertainty / step) * step;
-        if (un < step && x.uncertainty > 0) un = step;
-        return "±" + fixed(un, std::max(0, -e)) + " " + x.unit;
-    };
-    char pct[32];
-    std::snprintf(pct, sizeof pct, "%g", u.speed_rel * 100);
-    std::string t = q.name + " = " + formatQuantity(q) + "\n";
-    t += "Uncertainty, combined root-sum-square from:\n";
-    t += "  reading " + part(r) + ": each point placed to within half a pixel (" +
-         fixed(u.pixel_x_mm / 2, 3) + " mm in x, " + fixed(u.pixel_z_mm / 2, 3) + " mm in depth);\n";
-    t += "  speed of sound " + part(s) + ": the assumed speed is taken as uncertain by " +
-         std::string(pct) + " %, which scales depths and axial distances (lateral x is unaffected).";
-    return t;
+std::string quantityTooltip(const Quantity& q, const UncertaintyModel&) {
+    return formatBudget(toMeasured(q));
 }
 
 std::string nextMeasurementId(const std::vector<std::string>& existing) {

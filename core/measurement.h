@@ -9,15 +9,21 @@
 // The contributions are propagated to first order and combined root-sum-square (the speed part
 // is one common factor, so correlated terms are handled correctly).
 #include <cstddef>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "core/uncertainty.h"
+
 namespace umbra::core {
 
-/// DropSizing: a box around an indication, sized at −6 dB from its peak (core/drop_sizing.h; its
-/// quantities need the image, so evaluate() gives only the box's length and height).
-enum class MeasurementKind { Caliper, DepthMarker, ExtentBox, Ellipse, DropSizing };
+/// DropSizing / Drop20Sizing / TipSizing: a box around an indication, sized from the image at
+/// −6 dB, at −20 dB, or tip to tip (core/sizing.h; their quantities need the image, so
+/// evaluate() gives only the box's length and height).
+enum class MeasurementKind { Caliper, DepthMarker, ExtentBox, Ellipse, DropSizing, Drop20Sizing, TipSizing };
+/// True for the kinds sized from the image inside a box (DropSizing, Drop20Sizing, TipSizing).
+bool isImageSizing(MeasurementKind kind);
 
 /// A point in the image plane, mm. z is depth (down).
 struct PointMm {
@@ -43,8 +49,11 @@ struct Quantity {
     double value = 0;
     double uncertainty = 0;    ///< combined (root-sum-square) of the two parts below, same unit
     std::string unit;          ///< "mm" or "mm²"
-    double reading_part = 0;   ///< from half-pixel placement of the points, same unit
+    double reading_part = 0;   ///< from placing the points (resolution and grid), same unit
     double speed_part = 0;     ///< from the speed-of-sound assumption, same unit
+    /// The budget, component by component (standard uncertainties; combined = `uncertainty`).
+    std::vector<UncertaintyComponent> components = {};
+    bool upper_bound = false;  ///< resolution-limited extent: the true value may be smaller
     bool operator==(const Quantity&) const = default;
 };
 
@@ -54,6 +63,11 @@ struct UncertaintyModel {
     double pixel_z_mm = 0;     ///< pixel pitch in z, mm
     double speed_rel = 0.01;   ///< relative uncertainty of the assumed speed of sound (0.01 = 1 %)
     double surface_z_mm = 0;   ///< depth reference (z of the surface), mm
+    /// −6 dB point-spread widths (lateral, axial) in mm at (x, z) mm. When set, each placed point
+    /// is uncertain by its placement on an echo (rectangular ±W/2, W/(2√3)) and by the grid
+    /// (pixel/√12) instead of half a pixel.
+    std::function<std::pair<double, double>(double x_mm, double z_mm)> resolution = {};
+    std::string speed_basis = {};  ///< where speed_rel comes from (shown in the budget)
 };
 
 /// Number of points a measurement of this kind has (2, 1, 2, 3).
@@ -77,13 +91,17 @@ double ellipseCircumferenceRamanujan(double a, double b);
 std::string kindName(MeasurementKind kind);
 std::optional<MeasurementKind> kindFromName(const std::string& name);
 
-/// "12.34 ± 0.12 mm": the uncertainty is rounded to its first significant digit (two when that
-/// digit is 1), never finer than 0.01 of the unit, and the value to the same decimal place.
+/// "12.34 ± 0.24 mm": value ± expanded uncertainty U = 2·u (k = 2), rounded together by
+/// roundToUncertainty (GUM 7.2.6); an upper bound (resolution-limited) reads "≤ 1.89 mm".
 std::string formatQuantity(const Quantity& q);
+/// The quantity as a MeasuredValue (for budget views and exports).
+MeasuredValue toMeasured(const Quantity& q);
+/// A MeasuredValue as a Quantity (speed part = the "speed of sound" component).
+Quantity fromMeasured(const MeasuredValue& m);
 /// All quantities of one measurement joined with "; ": "Δx 3.00 ± 0.07 mm; ...".
 std::string formatQuantities(const std::vector<Quantity>& qs);
-/// Tooltip text explaining a quantity's uncertainty (reading part, speed-of-sound part and the
-/// assumed relative speed uncertainty), plain text, several lines.
+/// Tooltip text: the quantity's uncertainty budget (formatBudget), component by component,
+/// plain text, several lines.
 std::string quantityTooltip(const Quantity& q, const UncertaintyModel& u);
 
 /// "M<n>" with n one more than the largest number used by any id in `existing` of the form M<n>.

@@ -14,6 +14,7 @@ int cmdValidate(const Argv& args);
 int cmdSimulate(const Argv& args);
 int cmdReconstruct(const Argv& args);
 int cmdBatch(const Argv& args);
+int cmdMeasure(const Argv& args);
 
 struct Command {
     const char* name;

@@ -16,6 +16,7 @@ const std::vector<Command>& commands() {
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
+        {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
     };
     return table;
 }

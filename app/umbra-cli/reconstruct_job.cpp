@@ -11,6 +11,8 @@
 #include "core/error.h"
 #include "core/frame.h"
 #include "reconstruction/pipeline.h"
+#include "reconstruction/sizing_setup.h"
+#include "reconstruction/sizing_setup.h"
 #include "reconstruction/tgc_stage.h"
 
 namespace umbra::cli {
@@ -113,6 +115,14 @@ JobResult reconstructToFile(const JobOptions& o, const core::Recipe& recipe) {
     const std::string title = (h.title.empty() ? o.capture : h.title) +
                               (h.isSynthetic() && h.title.find("synthetic") == std::string::npos ? " - synthetic demonstration data" : "");
     core::ImageWriter out(o.image, grid.xAxis(), grid.zAxis(), recipe.toJson());
+    // Facts the sizing tools' point-spread model needs and the frames' scan positions (optional,
+    // docs/capture-format.md).
+    out.setAcquisition(recon::acquisitionOf(h));
+    if (h.scan && h.scan->position_m.size() == h.frames) {
+        std::vector<double> scan;
+        for (size_t k = 0; k < frames.count; ++k) scan.push_back(h.scan->position_m[frames.first + k]);
+        out.setScanPositions(scan);
+    }
     for (pos = 0; pos < frames.count; ++pos) {
         const size_t index = frames.first + pos;
         core::Frame f = rec.run(index, prog);

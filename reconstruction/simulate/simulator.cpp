@@ -212,6 +212,7 @@ core::CaptureHeader makeHeader(const Scene& s, const SimOptions& o) {
     h.array.fractional_bandwidth = s.array.fractional_bandwidth;
     h.array.element_width_m = s.array.element_width_m;
     h.array.element_height_m = s.array.element_height_m;
+    if (s.frames.kind == FrameKind::Encoded) h.array.elevation_beam_width_m = s.array.elevation_beam_width_m;
     h.transmit.kind = s.transmit.kind;
     const size_t ntx = s.transmit.count(s.array.elements);
     switch (s.transmit.kind) {

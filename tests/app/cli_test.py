@@ -177,7 +177,7 @@ def case_damaged_bytes():
 def case_help():
     rc, out, err = run("--help")
     check(rc == 0 and "usage:" in out, f"umbra-cli --help exit {rc}")
-    for cmd in ("info", "validate", "simulate", "reconstruct", "batch"):
+    for cmd in ("info", "validate", "simulate", "reconstruct", "batch", "measure"):
         rc, out, err = run(cmd, "--help")
         check(rc == 0, f"{cmd} --help exit {rc}: {err.strip()}")
         check("usage:" in out, f"{cmd} --help prints a usage line")
@@ -198,6 +198,81 @@ def case_usage_errors():
         check(rc == 2, f"{cmd} without a file exit {rc}")
         rc, out, err = run(cmd, path, path)
         check(rc == 2, f"{cmd} with two files exit {rc}")
+
+
+MEASURE_SCENE = {
+    "title": "measure test scene (synthetic)", "scenario": "unit_test", "seed": 5,
+    "array": {"elements": 32, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5,
+              "fractional_bandwidth": 0.6, "elevation_beam_width_mm": 2.0},
+    "transmit": {"kind": "single_element"},
+    "sampling": {"frequency_mhz": 50, "max_depth_mm": 16},
+    "medium": {"speed_m_s": 5920},
+    "noise": {"snr_db": 30, "reference": "peak"},
+    # A planar flaw seen by its two tip echoes only (face amplitude 0; tip-to-tip height
+    # 3.04 mm) over y -3..3 mm, and a point reflector; nine frames 1 mm apart along the scan axis.
+    # (Tips of opposite phase are covered by tests/reconstruction/sizing_coverage_test.cpp.)
+    "reflectors": {
+        "planar_flaws": [{"start_mm": [-2.0, 9.0], "end_mm": [-1.5, 12.04], "amplitude": 0.0,
+                          "tip_amplitude": 0.5, "y_range_mm": [-3.0, 3.0]}],
+        "points": [{"position_mm": [4.03, 0.0, 8.07], "amplitude": 1.0}],
+    },
+    "frames": {"kind": "encoded", "count": 9, "start_mm": -4, "step_mm": 1},
+}
+
+
+def case_measure():
+    """umbra-cli measure: JSON keys, tip-to-tip height against the scene's truth within the
+    expanded uncertainty (tip-diffraction sizing, common practice), a point flagged
+    resolution-limited, scan-axis length (-6 dB drop, common practice), exit 2 for bad boxes."""
+    d = fresh_dir()
+    scene = os.path.join(d, "scene.json")
+    with open(scene, "w") as f:
+        json.dump(MEASURE_SCENE, f)
+    cap, img, one = (os.path.join(d, n) for n in ("cap.h5", "img.h5", "one.h5"))
+    rc, out, err = run("simulate", scene, "-o", cap)
+    check(rc == 0, f"simulate exit {rc}: {err}")
+    rc, out, err = run("reconstruct", cap, "-o", img, "--grid-mm", "-6:7:6:14:0.1", "--threads", "2")
+    check(rc == 0, f"reconstruct exit {rc}: {err}")
+    rc, out, err = run("measure", img, "--tool", "tips", "--box-mm", "-4:0.5:7.5:13.5", "--frame", "4", "--json")
+    check(rc == 0, f"measure tips exit {rc}: {err}")
+    j = json.loads(out)
+    for k in ("tool", "frame", "x_mm", "depth_mm", "length_mm", "height_mm", "peak_db", "uncertainty_mm",
+              "resolution_limited", "warnings", "tips_mm"):
+        check(k in j, f"JSON key {k}")
+    check(set(j["uncertainty_mm"]) == {"x", "depth", "length", "height"}, f"uncertainty keys {j['uncertainty_mm']}")
+    truth = 12.04 - 9.0
+    check(abs(j["height_mm"] - truth) <= j["uncertainty_mm"]["height"],
+          f"tip-to-tip height {j['height_mm']} +- {j['uncertainty_mm']['height']} covers {truth}")
+    check(len(j["tips_mm"]) == 2 and abs(j["tips_mm"][0][1] - 9.0) < 0.3, f"tips {j['tips_mm']}")
+    print("tips:", j["height_mm"], "+-", j["uncertainty_mm"]["height"], "truth", truth)
+    rc, out, err = run("measure", img, "--tool", "drop6", "--box-mm", "2.5:5.5:7:9", "--frame", "4", "--json")
+    j = json.loads(out)
+    check(rc == 0 and j["resolution_limited"] is True, f"point reflector flagged resolution-limited: {j}")
+    check(isinstance(j["peak_db"], float) and j["peak_db"] <= 0, "peak_db re the frame peak")
+    rc, out, err = run("measure", img, "--tool", "scan-length", "--box-mm", "-4:0.5:7.5:13.5", "--json")
+    check(rc == 0, f"scan-length exit {rc}: {err}")
+    j = json.loads(out)
+    check(abs(j["length_mm"] - 6.0) <= j["uncertainty_mm"]["length"], f"scan length {j['length_mm']} covers 6.0 mm")
+    rc, out, err = run("measure", img, "--tool", "peak", "--box-mm", "2.5:5.5:7:9", "--frame", "4")
+    check(rc == 0 and "±" in out and "mm" in out, f"readable line: {out}")
+    for box in ("20:30:7:9", "5:2:7:9", "nan:1:7:9", "1:2:3", "inf:1:2:3"):
+        rc, out, err = run("measure", img, "--tool", "peak", "--box-mm", box)
+        check(rc == 2 and "--box-mm" in err, f"box {box}: exit {rc}: {err.strip()}")
+    # A single-frame image has no scan positions: scan-length is refused with exit 2.
+    rc, out, err = run("reconstruct", cap, "-o", one, "--grid-mm", "-6:7:6:14:0.2", "--frames", "0", "--threads", "2")
+    rc, out, err = run("measure", one, "--tool", "scan-length", "--box-mm", "-4:0.5:7.5:13.5")
+    check(rc == 2, f"scan-length on one frame exit {rc}: {err.strip()}")
+    # An image without the acquisition attributes: measured with a warning, no model.
+    import h5py
+    with h5py.File(one, "a") as f:
+        for a in ("centre_frequency_hz", "fractional_bandwidth", "speed_of_sound_m_s"):
+            if a in f.attrs:
+                del f.attrs[a]
+    rc, out, err = run("measure", one, "--tool", "peak", "--box-mm", "2.5:5.5:7:9", "--json")
+    j = json.loads(out)
+    check(rc == 0 and any("point-spread widths unknown" in w for w in j["warnings"]), f"fallback warning: {j['warnings']}")
+    rc, out, err = run("measure", os.path.join(d, "missing.h5"), "--tool", "peak", "--box-mm", "0:1:0:1")
+    check(rc == 2 and "missing.h5" in err, f"missing file exit {rc}: {err.strip()}")
 
 
 if __name__ == "__main__":

@@ -130,6 +130,18 @@ TEST(case_file_test, round_trip_keeps_every_field) {
     EXPECT_EQ(caseToJson(back, t.path().string()), readFile(file));
 }
 
+// The case's speed-of-sound setting for the uncertainty budgets survives a save and load.
+TEST(case_file_test, sizing_settings_round_trip) {
+    CaseDocument d;
+    d.sizing_medium = "water";
+    d.speed_uncertainty_rel = 0.005;
+    const CaseDocument back = caseFromJson(caseToJson(d), "mem");
+    EXPECT_EQ(back.sizing_medium, "water");
+    ASSERT_TRUE(back.speed_uncertainty_rel.has_value());
+    EXPECT_DOUBLE_EQ(*back.speed_uncertainty_rel, 0.005);
+    EXPECT_EQ(caseToJson(CaseDocument{}).find("sizing"), std::string::npos);  // absent when unset
+}
+
 TEST(case_file_test, capture_paths_are_stored_relative_to_the_case) {
     TempDir t;
     const CaseDocument d = fullCase(t.path());
@@ -291,6 +303,11 @@ TEST(case_file_test, bad_files_give_errors_naming_file_and_key) {
     EXPECT_EQ(where(replaced("\"active_capture\": 1", "\"active_capture\": 5")).rfind("active_capture |", 0), 0u);
     EXPECT_EQ(where(replaced("\"x_mm\": 2.4", "\"x_mm\": \"2.4\"")).rfind("findings[0].indication.x_mm |", 0), 0u);
     EXPECT_EQ(where(good), "no error");
+    // Sizing settings: a known medium and a relative uncertainty in [0, 0.5].
+    EXPECT_EQ(where(replaced("\"findings\":", "\"sizing\": {\"medium\": \"glass\"}, \"findings\":")).rfind("sizing.medium |", 0), 0u);
+    EXPECT_EQ(where(replaced("\"findings\":", "\"sizing\": {\"speed_uncertainty_rel\": 2}, \"findings\":"))
+                  .rfind("sizing.speed_uncertainty_rel |", 0),
+              0u);
 
     try {
         loadCase((t.path() / "absent.umbracase").string());

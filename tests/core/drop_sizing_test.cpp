@@ -92,15 +92,6 @@ TEST(drop_sizing_test, peak_is_the_one_inside_the_box_and_open_edges_are_flagged
     const double h = 2 * 0.1 * (1.0 / 1.99);
     EXPECT_NEAR(s.heightMm(), h, 1e-6);
 
-    // Uncertainty: two edges at half a pixel each; the speed part scales the height only.
-    UncertaintyModel u{0.1, 0.1, 0.01, 0.0};
-    const auto q = dropSizingQuantities(s, u);
-    ASSERT_EQ(q.size(), 3u);
-    EXPECT_NEAR(q[0].reading_part, std::sqrt(2.0) * 0.05, 1e-12);
-    EXPECT_DOUBLE_EQ(q[0].speed_part, 0.0);
-    EXPECT_NEAR(q[1].speed_part, h * 0.01, 1e-8);
-    EXPECT_NEAR(q[2].value, 3.0, 1e-9);
-
     EXPECT_FALSE(dropSize(g.a, g.x, g.z, {20, 20}, {30, 30}).found);  // box outside the image
     EXPECT_THROW(dropSize(g.a, g.x, g.z, {0, 0}, {1, 1}, 1.5), SettingError);
     EXPECT_THROW(dropSize(std::vector<float>(3), g.x, g.z, {0, 0}, {1, 1}), SettingError);

@@ -166,27 +166,43 @@ TEST(measurement_test, ellipse_uncertainty_matches_hand_calculation) {
     EXPECT_NEAR(q[3].speed_part, dCdb * b * 0.01, 1e-8);
 }
 
-// Rounding: the uncertainty keeps its first significant digit (two when it is a 1; at most two
-// significant digits is common practice, JCGM 100:2008 (GUM) 7.2.6), never finer than 0.01.
-TEST(measurement_test, format_rounds_value_to_the_uncertainty) {
-    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.123, "mm"}), "12.35 ± 0.12 mm");
-    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.0534, "mm"}), "12.35 ± 0.05 mm");
-    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.34, "mm"}), "12.3 ± 0.3 mm");
-    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.0012, "mm"}), "12.35 ± 0.01 mm");  // floor 0.01
-    EXPECT_EQ(formatQuantity({"area", 1234.5, 34, "mm²"}), "1230 ± 30 mm²");
-    EXPECT_EQ(formatQuantity({"d", 5.0, 0.96, "mm"}), "5.0 ± 1.0 mm");
+// Display: value ± expanded uncertainty U = 2 u (k = 2, JCGM 100:2008 6.2.1), U to two
+// significant digits and the value to the same place (GUM 7.2.6).
+TEST(measurement_test, format_rounds_value_to_the_expanded_uncertainty) {
+    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.123, "mm"}), "12.35 ± 0.25 mm");
+    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.0534, "mm"}), "12.35 ± 0.11 mm");
+    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.34, "mm"}), "12.35 ± 0.68 mm");
+    EXPECT_EQ(formatQuantity({"distance", 12.3456, 0.0012, "mm"}), "12.3456 ± 0.0024 mm");
+    EXPECT_EQ(formatQuantity({"area", 1234.5, 34, "mm²"}), "1235 ± 68 mm²");
+    EXPECT_EQ(formatQuantity({"d", 5.0, 0.96, "mm"}), "5.0 ± 1.9 mm");
     EXPECT_EQ(formatQuantity({"d", -0.001, 0.0, "mm"}), "0.00 ± 0.00 mm");
     const std::vector<Quantity> two{{"Δx", 3, 0.0707, "mm"}, {"Δdepth", 4, 0.0534, "mm"}};
-    EXPECT_EQ(formatQuantities(two), "Δx 3.00 ± 0.07 mm; Δdepth 4.00 ± 0.05 mm");
+    EXPECT_EQ(formatQuantities(two), "Δx 3.00 ± 0.14 mm; Δdepth 4.00 ± 0.11 mm");
 }
 
-TEST(measurement_test, tooltip_states_the_speed_of_sound_assumption) {
+// With point-spread widths the placement of a point is rectangular ±W/2 (W/(2√3)) and the grid
+// pixel/√12, per point and axis (GUM 4.3.7, rectangular distribution): an ellipse axis of a 6 mm
+// cyst imaged with W = 1.7 mm laterally is uncertain by far more than half a pixel.
+TEST(measurement_test, placement_from_the_point_spread_width) {
+    UncertaintyModel u = kModel;  // pixel 0.1 x 0.05 mm
+    u.resolution = [](double, double) { return std::pair{1.7, 0.9}; };
+    const auto q = evaluate(make(MeasurementKind::Caliper, {{0, 10}, {6, 10}}), u);
+    // Δx = x1 − x0: two points, each W/(2√3) laterally and pixel/√12 for the grid.
+    const double place = std::sqrt(2.0) * 1.7 / (2 * std::sqrt(3.0)), grid = std::sqrt(2.0) * 0.1 / std::sqrt(12.0);
+    EXPECT_NEAR(q[0].reading_part, std::hypot(place, grid), 1e-12);
+    ASSERT_EQ(q[0].components.size(), 3u);
+    EXPECT_EQ(q[0].components[0].name, "resolution (point placement)");
+    EXPECT_NEAR(q[0].components[0].standard, place, 1e-12);
+    EXPECT_NEAR(q[0].components[1].standard, grid, 1e-12);
+}
+
+TEST(measurement_test, tooltip_lists_the_budget) {
     auto q = evaluate(make(MeasurementKind::DepthMarker, {{2, 20}}), kModel);
     const std::string t = quantityTooltip(q[0], kModel);
     EXPECT_NE(t.find("1 %"), std::string::npos) << t;
     EXPECT_NE(t.find("speed of sound"), std::string::npos) << t;
     EXPECT_NE(t.find("half a pixel"), std::string::npos) << t;
-    EXPECT_NE(t.find("20.0 ± 0.2 mm"), std::string::npos) << t;
+    EXPECT_NE(t.find("20.00 ± 0.40 mm (k = 2)"), std::string::npos) << t;
 }
 
 TEST(measurement_test, wrong_point_count_is_a_clear_error) {

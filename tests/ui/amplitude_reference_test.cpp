@@ -53,14 +53,18 @@ TEST(amplitude_reference_test, six_db_sizing_matches_core_and_is_listed) {
     EXPECT_DOUBLE_EQ(d->heightMm(), c.heightMm());
     // At the −6 dB edges the envelope is half the peak (linear interpolation between pixels).
     const auto q = ctl->quantities(*m);
-    ASSERT_EQ(q.size(), 3u);
+    ASSERT_EQ(q.size(), 4u);  // length, height, x, depth
     EXPECT_EQ(q[0].name, "length −6 dB");
+    EXPECT_EQ(q[2].name, "x");
     EXPECT_GT(q[0].value, 0.0);
     EXPECT_LT(q[0].value, 6.0);
-    // Finding from the sizing takes its length and height.
+    // Finding from the sizing takes its length and height, rounded to their expanded
+    // uncertainties (GUM 7.2.6): equal to the rounded readout text.
     ctl->addFindingFromMeasurement(id);
-    EXPECT_NEAR(*ctl->findings().back().indication.length_mm, d->lengthMm(), 1e-12);
-    EXPECT_NEAR(*ctl->findings().back().indication.height_mm, d->heightMm(), 1e-12);
+    const auto& ind = ctl->findings().back().indication;
+    EXPECT_EQ(*ind.length_mm, std::stod(core::roundToUncertainty(q[0].value, 2 * q[0].uncertainty).value_text));
+    EXPECT_EQ(*ind.height_mm, std::stod(core::roundToUncertainty(q[1].value, 2 * q[1].uncertainty).value_text));
+    EXPECT_NEAR(*ind.length_mm, d->lengthMm(), 2 * q[0].uncertainty);
     // The measurement table lists the sizing quantities when given them.
     ui::MeasurementTable t;
     t.setMeasurements(ctl->measurements(), ctl->uncertaintyModel(), {{id, q}});

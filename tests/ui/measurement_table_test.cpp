@@ -27,7 +27,8 @@ std::vector<core::Measurement> sample() {
 }  // namespace
 
 // 3-4-5 caliper; uncertainties by hand (see tests/core/measurement_test.cpp):
-// Δx ±0.0707, Δdepth ±0.0534, distance ±0.0602 mm; depth 20 mm ± √(0.025² + 0.2²) = 0.2016.
+// Δx ±0.0707, Δdepth ±0.0534, distance ±0.0602 mm; depth 20 mm ± √(0.025² + 0.2²) = 0.2016
+// (standard); shown as expanded U = 2u (k = 2) rounded to two digits (JCGM 100:2008 6.2.1, 7.2.6).
 TEST(measurement_table_test, shows_values_with_uncertainty_and_unit) {
     MeasurementTable t;
     t.setMeasurements(sample(), kModel);
@@ -36,9 +37,9 @@ TEST(measurement_table_test, shows_values_with_uncertainty_and_unit) {
     EXPECT_EQ(t.item(0, MeasurementTable::KindColumn)->text(), "caliper");
     EXPECT_EQ(t.item(0, MeasurementTable::LabelColumn)->text(), "root gap");
     EXPECT_EQ(t.item(0, MeasurementTable::QuantitiesColumn)->text(),
-              QString::fromUtf8("Δx 3.00 ± 0.07 mm; Δdepth 4.00 ± 0.05 mm; distance 5.00 ± 0.06 mm"));
+              QString::fromUtf8("Δx 3.00 ± 0.14 mm; Δdepth 4.00 ± 0.11 mm; distance 5.00 ± 0.12 mm"));
     EXPECT_EQ(t.item(0, MeasurementTable::FrameColumn)->text(), "4");  // frames shown 1-based
-    EXPECT_EQ(t.item(1, MeasurementTable::QuantitiesColumn)->text(), QString::fromUtf8("depth 20.0 ± 0.2 mm"));
+    EXPECT_EQ(t.item(1, MeasurementTable::QuantitiesColumn)->text(), QString::fromUtf8("depth 20.00 ± 0.40 mm"));
     EXPECT_TRUE(t.item(1, MeasurementTable::QuantitiesColumn)->toolTip().contains("speed of sound"));
     EXPECT_TRUE(t.item(1, MeasurementTable::QuantitiesColumn)->toolTip().contains("1 %"));
     // Only the label is editable.

@@ -4,6 +4,8 @@
 // (independent of the demo samples) and a way to wait for the controller's worker.
 #include <QString>
 
+#include "ui/main/main_window.h"
+
 #include <functional>
 #include <string>
 #include <vector>

@@ -548,6 +548,7 @@ void CaseController::rerender() {
     try {
         const core::Frame tgc = recon::applyTgc(*envelope_, reader_->header(), recipe_);
         tgc_amp_ = tgc.envelope;
+        sizing_setup_.reset();
         db_ = recon::logCompress(tgc, recipe_);
         image_ = rgbToImage(recon::colourise(db_, recipe_), envelope_->nx(), envelope_->nz());
     } catch (const std::exception& e) {
@@ -592,6 +593,10 @@ void CaseController::rebuildTopView() {
             }
         }
         for (float v : peak) top = std::max(top, v);
+        top_peak_ = peak;
+        top_have_ = have;
+        top_x_mm_.clear();
+        for (double v : any->x_m) top_x_mm_.push_back(v * 1e3);
         const double dr = dynamicRangeDb();
         std::vector<float> db(peak.size(), static_cast<float>(-dr));
         for (size_t i = 0; i < peak.size(); ++i)
@@ -621,8 +626,19 @@ core::UncertaintyModel CaseController::uncertaintyModel() const {
         u.pixel_x_mm = std::abs(envelope_->x_m[1] - envelope_->x_m[0]) * 1e3;
         u.pixel_z_mm = std::abs(envelope_->z_m[1] - envelope_->z_m[0]) * 1e3;
     }
-    u.speed_rel = 0.01;  // stated assumption: speed of sound known to 1 %
+    u.speed_rel = 0.01;  // without an image: speed of sound taken as known to 1 %
     u.surface_z_mm = 0;  // the array face is the depth reference
+    if (const auto* s = sizingSetup()) {
+        u.speed_rel = s->context.speed_rel;
+        u.speed_basis = s->context.speed_basis;
+        if (s->context.resolution) {
+            const core::ResolutionAt r = s->context.resolution;
+            u.resolution = [r](double x, double z) {
+                const auto w = r(x, z);
+                return std::pair{w.lateral_mm, w.axial_mm};
+            };
+        }
+    }
     return u;
 }
 
@@ -759,18 +775,137 @@ std::optional<CaseController::CurvePeak> CaseController::peakReCurveIn(const cor
     return best;
 }
 
-std::optional<core::DropSizing> CaseController::dropSizing(const core::Measurement& m) const {
-    if (m.kind != core::MeasurementKind::DropSizing || m.points.size() != 2 || !envelope_ || m.frame_index != frame_ ||
-        tgc_amp_.size() != envelope_->nx() * envelope_->nz())
-        return std::nullopt;
+const recon::SizingSetup* CaseController::sizingSetup() const {
+    if (!envelope_ || !reader_ || tgc_amp_.size() != envelope_->nx() * envelope_->nz()) return nullptr;
+    if (!sizing_setup_) {
+        try {
+            recon::SizingSettings settings;
+            settings.medium = doc_.sizing_medium;
+            settings.speed_rel = doc_.speed_uncertainty_rel;
+            sizing_setup_ = recon::sizingSetup(recipe_, recon::acquisitionOf(reader_->header()), tgc_amp_, settings);
+        } catch (const std::exception&) {
+            return nullptr;
+        }
+    }
+    return &*sizing_setup_;
+}
+
+std::optional<core::SizingResult> CaseController::sizing(const core::Measurement& m) const {
+    if (!core::isImageSizing(m.kind) || m.points.size() != 2 || m.frame_index != frame_) return std::nullopt;
+    const auto* setup = sizingSetup();
+    if (!setup) return std::nullopt;
     std::vector<double> xs, zs;
     for (double v : envelope_->x_m) xs.push_back(v * 1e3);
     for (double v : envelope_->z_m) zs.push_back(v * 1e3);
-    return core::dropSize(tgc_amp_, xs, zs, m.points[0], m.points[1]);
+    const core::SizingTool tool = m.kind == core::MeasurementKind::TipSizing      ? core::SizingTool::Tips
+                                  : m.kind == core::MeasurementKind::Drop20Sizing ? core::SizingTool::Drop20
+                                                                                  : core::SizingTool::Drop6;
+    try {
+        return core::measureInBox(tool, tgc_amp_, xs, zs, m.points[0], m.points[1], setup->context);
+    } catch (const std::exception&) {
+        return std::nullopt;
+    }
+}
+
+std::optional<CaseController::TopViewMeasure> CaseController::topViewMeasure(double xa, double ya, double xb, double yb) const {
+    if (!reader_ || !isEncodedScan() || top_x_mm_.empty() || !reader_->header().scan) return std::nullopt;
+    const auto& pos = reader_->header().scan->position_m;
+    const size_t nx = top_x_mm_.size();
+    std::vector<double> y, proj;
+    const double lo = std::min(xa, xb), hi = std::max(xa, xb);
+    for (size_t f = 0; f < top_have_.size() && f < pos.size(); ++f) {
+        if (!top_have_[f]) continue;
+        double m = 0;
+        for (size_t x = 0; x < nx; ++x)
+            if (top_x_mm_[x] >= lo - 1e-9 && top_x_mm_[x] <= hi + 1e-9) m = std::max(m, double(top_peak_[f * nx + x]));
+        y.push_back(pos[f] * 1e3);
+        proj.push_back(m);
+    }
+    const auto* setup = sizingSetup();
+    const double elev = setup ? setup->elevation_width_mm : 0;
+    double lateral = 0;
+    if (setup && setup->context.resolution)
+        lateral = setup->context.resolution(0.5 * (xa + xb), 0.5 * (top_gate_mm_.first + top_gate_mm_.second)).lateral_mm;
+    const double step_x = nx > 1 ? (top_x_mm_.back() - top_x_mm_.front()) / double(nx - 1) : 0;
+    const double step_y = pos.size() > 1 ? std::abs(pos.back() - pos.front()) * 1e3 / double(pos.size() - 1) : 0;
+    TopViewMeasure out;
+    out.end_to_end = core::endToEnd({xa, ya}, {xb, yb}, lateral, elev, step_x, step_y);
+    try {
+        if (y.size() >= 2) out.scan_length = core::scanLength(y, proj, core::kSixDbDropRatio, elev);
+    } catch (const std::exception&) {
+    }
+    return out;
+}
+
+void CaseController::setSpeedUncertainty(const std::string& medium, std::optional<double> relative) {
+    using Setting = std::pair<std::string, std::optional<double>>;
+    const Setting before{doc_.sizing_medium, doc_.speed_uncertainty_rel}, after{medium, relative};
+    if (before == after) return;
+    undo_.push(new ValueCommand<Setting>(tr("Set speed-of-sound uncertainty"), before, after, [this](const Setting& v) {
+        doc_.sizing_medium = v.first;
+        doc_.speed_uncertainty_rel = v.second;
+        sizing_setup_.reset();
+        markDirty();
+        emit measurementsChanged();  // every value's budget changes
+        emit imageChanged();
+    }));
+}
+
+std::pair<std::string, double> CaseController::speedUncertainty() const {
+    if (const auto* s = sizingSetup()) return {s->medium, s->context.speed_rel};
+    const std::string m = doc_.sizing_medium.empty() ? "other" : doc_.sizing_medium;
+    return {m, doc_.speed_uncertainty_rel.value_or(core::speedUncertaintyDefault(m).relative)};
+}
+
+QString CaseController::budgetText(const std::string& id) const {
+    const core::Measurement* m = measurement(id);
+    if (!m) return {};
+    QStringList parts;
+    parts << tr("%1 (%2), frame %3").arg(QString::fromStdString(m->label.empty() ? m->id : m->label),
+                                        QString::fromStdString(core::kindName(m->kind)), QString::number(m->frame_index + 1));
+    try {
+        for (const auto& q : quantities(*m)) parts << QString::fromStdString(core::formatBudget(core::toMeasured(q)));
+    } catch (const std::exception& e) {
+        parts << tr("cannot be measured: %1").arg(QString::fromUtf8(e.what()));
+    }
+    if (const auto s = sizing(*m)) {
+        if (s->resolution.lateral_mm > 0)
+            parts << tr("Point-spread widths at the peak (−6 dB): lateral %1 mm, axial %2 mm (model).")
+                         .arg(s->resolution.lateral_mm, 0, 'f', 2)
+                         .arg(s->resolution.axial_mm, 0, 'f', 2);
+        for (const auto& w : s->warnings) parts << tr("Warning: %1").arg(QString::fromStdString(w));
+    }
+    parts << tr("Expanded uncertainties use k = 2 (about 95 %). A sizing aid: the written procedure, the applicable code and "
+                "qualified people decide.");
+    return parts.join(QStringLiteral("\n\n"));
+}
+
+void CaseController::changeSizingKind(const std::string& id, core::MeasurementKind kind) {
+    auto after = measurements();
+    for (auto& m : after)
+        if (m.id == id) {
+            if (!core::isImageSizing(m.kind) || !core::isImageSizing(kind) || m.kind == kind) return;
+            m.kind = kind;
+        }
+    undo_.push(new MoveMeasurementCommand(tr("Change %1 to %2").arg(QString::fromStdString(id), QString::fromStdString(core::kindName(kind))),
+                                          measurements(), after, [this](const MeasurementList& v) { setMeasurements(v); }));
+}
+
+std::optional<core::DropSizing> CaseController::dropSizing(const core::Measurement& m) const {
+    if (m.kind == core::MeasurementKind::TipSizing) return std::nullopt;
+    const auto s = sizing(m);
+    if (!s) return std::nullopt;
+    return s->drop;
 }
 
 std::vector<core::Quantity> CaseController::quantities(const core::Measurement& m) const {
-    if (const auto d = dropSizing(m); d && d->found) return core::dropSizingQuantities(*d, uncertaintyModel());
+    if (const auto s = sizing(m); s && s->found) {
+        // Extents first (the label shows them), then the position.
+        std::vector<core::Quantity> q;
+        for (const auto* v : {&s->length, &s->height, &s->x, &s->depth})
+            if (*v) q.push_back(core::fromMeasured(**v));
+        return q;
+    }
     return core::evaluate(m, uncertaintyModel());
 }
 
@@ -923,12 +1058,52 @@ QString CaseController::outsideText() const {
     return tr("outside the curve's depth range %1–%2 mm (end level held)").arg(r->first * 1e3, 0, 'f', 1).arg(r->second * 1e3, 0, 'f', 1);
 }
 
-std::string CaseController::addFindingFromMeasurement(const std::string& measurement_id) {
-    const core::Measurement* m = measurement(measurement_id);
+std::map<std::string, std::string> CaseController::roundIndication(core::Indication& ind, const core::Measurement& m) const {
+    // Each number rounded to its expanded uncertainty (GUM 7.2.6) with the same budgets as the
+    // readout: image sizing from its own budgets; other kinds through an extent box and a depth
+    // marker on the measurement's bounding box.
+    std::map<std::string, double> U;
+    if (const auto sz = sizing(m); sz && sz->found) {
+        if (sz->x) U["x"] = sz->x->budget.expanded();
+        if (sz->depth) U["depth"] = sz->depth->budget.expanded();
+        if (sz->length) U["length"] = sz->length->budget.expanded();
+        if (sz->height) U["height"] = sz->height->budget.expanded();
+    } else if (ind.x_mm && ind.depth_mm) {
+        const auto u = uncertaintyModel();
+        core::Measurement box;
+        box.kind = core::MeasurementKind::ExtentBox;
+        const double hl = ind.length_mm.value_or(0) / 2;
+        box.points = {{*ind.x_mm - hl, *ind.depth_mm}, {*ind.x_mm + hl, *ind.depth_mm + ind.height_mm.value_or(0)}};
+        const auto q = core::evaluate(box, u);
+        U["length"] = core::kCoverageFactor * q[0].uncertainty;
+        U["height"] = core::kCoverageFactor * q[1].uncertainty;
+        U["x"] = U["length"] / 2;
+        core::Measurement dm;
+        dm.kind = core::MeasurementKind::DepthMarker;
+        dm.points = {{*ind.x_mm, *ind.depth_mm}};
+        U["depth"] = core::kCoverageFactor * core::evaluate(dm, u)[0].uncertainty;
+    }
+    std::map<std::string, std::string> text;
+    auto round = [&](std::optional<double>& v, const char* key) {
+        if (!v || !U.count(key)) return;
+        text[key] = core::roundToUncertainty(*v, U[key]).value_text;
+        *v = std::stod(text[key]);
+    };
+    round(ind.x_mm, "x");
+    round(ind.depth_mm, "depth");
+    round(ind.length_mm, "length");
+    round(ind.height_mm, "height");
+    if (ind.peak_db) {
+        // Peak level: the pixel grid may miss the true peak by up to the fidelity target of the
+        // automatic grid (rectangular over [0, target]: target/√12, expanded k = 2).
+        const double target = recipe_.number("grid.max_loss_db");
+        *ind.peak_db = std::stod(core::roundToUncertainty(*ind.peak_db, core::kCoverageFactor * target / std::sqrt(12.0)).value_text);
+    }
+    return text;
+}
+
+core::Indication CaseController::indicationFrom(const core::Measurement* m) const {
     core::Finding f;
-    f.id = core::nextFindingId(doc_.findings);
-    f.number = 1;
-    for (const auto& x : doc_.findings) f.number = std::max(f.number, x.number + 1);
     f.indication.capture_index = doc_.active_capture;
     f.indication.frame_index = frame_;
     if (m) {
@@ -987,27 +1162,43 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
                 }
             }
         }
-        if (m->kind == core::MeasurementKind::DropSizing) {
-            const auto qs = quantities(*m);
-            for (const auto& q : qs) {
-                if (q.name == "length −6 dB") f.indication.length_mm = q.value;
-                if (q.name == "height −6 dB") f.indication.height_mm = q.value;
-            }
-            if (const auto d = dropSizing(*m); d && d->found) {
-                f.indication.x_mm = 0.5 * (d->left_x_mm + d->right_x_mm);
-                z0 = d->top_z_mm;
-                f.indication.depth_mm = z0;
-            }
+        if (const auto sz = sizing(*m); sz && sz->found) {
+            // From the image sizing: the peak (upper tip) position and the sized extents.
+            f.indication.x_mm = sz->x ? std::optional(sz->x->value) : std::nullopt;
+            f.indication.depth_mm = sz->depth ? std::optional(sz->depth->value) : std::nullopt;
+            f.indication.length_mm = sz->length ? std::optional(sz->length->value) : std::nullopt;
+            f.indication.height_mm = sz->height ? std::optional(sz->height->value) : std::nullopt;
+            if (sz->depth) z0 = sz->depth->value;
         }
+        const auto rounded = roundIndication(f.indication, *m);
+        z0 = f.indication.depth_mm.value_or(z0);
         std::ostringstream loc;
         loc.setf(std::ios::fixed);
         loc.precision(1);
         loc << "frame " << (f.indication.frame_index + 1);
         const QString fl = frameLabel(f.indication.frame_index);
         if (!fl.isEmpty()) loc << " (" << fl.toStdString() << ")";
-        loc << ", x = " << *f.indication.x_mm << " mm, depth " << z0 << " mm";
+        auto text = [&](const char* key, double v) {
+            const auto it = rounded.find(key);
+            if (it != rounded.end()) return it->second;
+            std::ostringstream o;
+            o.setf(std::ios::fixed);
+            o.precision(1);
+            o << v;
+            return o.str();
+        };
+        loc << ", x = " << text("x", f.indication.x_mm.value_or(0)) << " mm, depth " << text("depth", z0) << " mm";
         f.indication.location = loc.str();
     }
+    return f.indication;
+}
+
+std::string CaseController::addFindingFromMeasurement(const std::string& measurement_id) {
+    core::Finding f;
+    f.id = core::nextFindingId(doc_.findings);
+    f.number = 1;
+    for (const auto& x : doc_.findings) f.number = std::max(f.number, x.number + 1);
+    f.indication = indicationFrom(measurement(measurement_id));
     auto after = doc_.findings;
     after.push_back(f);
     editFindings(after, tr("Add finding %1").arg(f.number));
@@ -1064,6 +1255,45 @@ QString CaseController::tgcText() const {
         .arg(f_src);
 }
 
+namespace {
+bool sameNumbers(const core::Indication& a, const core::Indication& b) {
+    auto same = [](const std::optional<double>& x, const std::optional<double>& y) {
+        return x.has_value() == y.has_value() && (!x || std::abs(*x - *y) < 1e-9);
+    };
+    return same(a.x_mm, b.x_mm) && same(a.depth_mm, b.depth_mm) && same(a.length_mm, b.length_mm) && same(a.height_mm, b.height_mm);
+}
+}  // namespace
+
+std::vector<std::string> CaseController::outOfDateFindings() const {
+    std::vector<std::string> ids;
+    for (const auto& f : doc_.findings) {
+        if (f.indication.measurement_ids.empty() || f.indication.capture_index != doc_.active_capture) continue;
+        const core::Measurement* m = measurement(f.indication.measurement_ids.front());
+        // Only what can be recomputed now: a measurement on the frame shown (sizing reads the image).
+        if (!m || m->frame_index != frame_ || !envelope_) continue;
+        if (!f.indication.x_mm && !f.indication.depth_mm && !f.indication.length_mm && !f.indication.height_mm) continue;
+        if (!sameNumbers(f.indication, indicationFrom(m))) ids.push_back(f.id);
+    }
+    return ids;
+}
+
+void CaseController::acceptMeasuredValues(const std::string& finding_id) {
+    auto after = doc_.findings;
+    for (auto& f : after)
+        if (f.id == finding_id && !f.indication.measurement_ids.empty())
+            if (const core::Measurement* m = measurement(f.indication.measurement_ids.front())) {
+                const core::Indication fresh = indicationFrom(m);
+                f.indication.x_mm = fresh.x_mm;
+                f.indication.depth_mm = fresh.depth_mm;
+                f.indication.length_mm = fresh.length_mm;
+                f.indication.height_mm = fresh.height_mm;
+                f.indication.peak_db = fresh.peak_db;
+                f.indication.reference = fresh.reference;
+                f.indication.location = fresh.location;
+            }
+    editFindings(after, tr("Update finding numbers from %1").arg(QString::fromStdString(finding_id)));
+}
+
 QString CaseController::techniqueText() const {
     if (!reader_) return {};
     const auto& h = reader_->header();
@@ -1079,7 +1309,13 @@ QString CaseController::techniqueText() const {
                  .arg(h.transmits())
                  .arg(fmc ? tr(" (full matrix, total focusing)") : QString())
                  .arg(h.receive.sampling_frequency_hz / 1e6, 0, 'f', 1);
-    lines << tr("Speed of sound: %1 (assumed known to ±1 %)").arg(speedText());
+    {
+        const auto [medium, rel] = speedUncertainty();
+        lines << tr("Speed of sound: %1 (standard uncertainty %2 %, %3)")
+                     .arg(speedText())
+                     .arg(rel * 100, 0, 'g', 2)
+                     .arg(QString::fromStdString(medium));
+    }
     if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
         lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
                      .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)

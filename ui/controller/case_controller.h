@@ -22,6 +22,8 @@
 #include "core/frame.h"
 #include "core/measurement.h"
 #include "core/parameters.h"
+#include "core/sizing.h"
+#include "reconstruction/sizing_setup.h"
 #include "ui/controller/beamform_worker.h"
 
 namespace umbra::ui {
@@ -157,6 +159,13 @@ public:
     void editFindings(const std::vector<core::Finding>& fs, const QString& what);
     void setFindings(const std::vector<core::Finding>& fs);  ///< no undo (commands use it)
     /// New finding pre-filled from a measurement (location, sizes, peak dB). Returns its id.
+    /// The indication a finding made from `m` gets now (numbers rounded to their uncertainties).
+    core::Indication indicationFrom(const core::Measurement* m) const;
+    /// Findings whose numbers differ from what their linked measurement gives now (recipe change,
+    /// moved points); only findings whose measurement is on the frame shown are checked.
+    std::vector<std::string> outOfDateFindings() const;
+    /// Copies the linked measurement's current numbers into the finding (one undoable edit).
+    void acceptMeasuredValues(const std::string& finding_id);
     std::string addFindingFromMeasurement(const std::string& measurement_id);
     // ------------------------------------------------------------------ distance–amplitude curve
     /// The case's distance–amplitude curve (the amplitude reference), if any.
@@ -215,9 +224,34 @@ public:
     /// Quantities of a measurement: core::evaluate, and for a −6 dB sizing on the current frame
     /// the drop sizing of the TCG-corrected envelope (box quantities on other frames).
     std::vector<core::Quantity> quantities(const core::Measurement& m) const;
-    /// −6 dB drop sizing of the TCG-corrected envelope inside a −6 dB sizing measurement on the
-    /// current frame; nullopt for other kinds, other frames or without an image.
+    /// Drop edges of a −6 dB or −20 dB sizing measurement on the current frame (sizing(m)->drop);
+    /// nullopt for other kinds, other frames or without an image.
     std::optional<core::DropSizing> dropSizing(const core::Measurement& m) const;
+    /// Sizing (core/sizing.h) of the TCG-corrected envelope inside an image-sizing measurement
+    /// (−6 dB, −20 dB, tips) on the current frame, with the point-spread model and speed-of-sound
+    /// uncertainty of recon::sizingSetup; nullopt for other kinds, other frames or without an image.
+    std::optional<core::SizingResult> sizing(const core::Measurement& m) const;
+    /// Top view measuring between two points (x, scan position y) in mm: the end-to-end distance
+    /// and the −6 dB length along the scan axis of the top view's projection restricted to the
+    /// points' x range (frames not yet beamformed are left out).
+    struct TopViewMeasure {
+        core::MeasuredValue end_to_end;
+        std::optional<core::SizingResult> scan_length;
+    };
+    std::optional<TopViewMeasure> topViewMeasure(double xa, double ya, double xb, double yb) const;
+    /// The uncertainty budget of every quantity of a measurement, component by component, with
+    /// the sizing's warnings (plain text for the budget view); empty for an unknown id.
+    QString budgetText(const std::string& id) const;
+    /// Turns an image-sizing measurement into another sizing kind (e.g. a −6 dB box that holds
+    /// two peaks into tip sizing), as one undoable edit.
+    void changeSizingKind(const std::string& id, core::MeasurementKind kind);
+    /// Sets the case's medium for the speed-of-sound default ("" = guessed from the speed) and its
+    /// relative standard uncertainty of the speed (unset = the medium's default); undoable.
+    void setSpeedUncertainty(const std::string& medium, std::optional<double> relative);
+    /// The medium and relative speed uncertainty in use (after defaults).
+    std::pair<std::string, double> speedUncertainty() const;
+    /// The sizing context of the current frame (point-spread model, speed uncertainty, noise).
+    const recon::SizingSetup* sizingSetup() const;
 
     /// Technique block: array, frequency, transmits, speed of sound, grid, fidelity, TCG.
     QString techniqueText() const;
@@ -256,6 +290,9 @@ signals:
 
 private:
     void resetState();
+    /// Rounds the pre-filled numbers of a finding to their uncertainties (GUM 7.2.6); returns
+    /// the rounded texts by key ("x", "depth", "length", "height").
+    std::map<std::string, std::string> roundIndication(core::Indication& ind, const core::Measurement& m) const;
     void openActiveCapture();
     void storeActiveState();
     void requestBeamform();
@@ -295,9 +332,13 @@ private:
     FramePtr envelope_;
     std::vector<float> db_;
     std::vector<float> tgc_amp_;
+    mutable std::optional<recon::SizingSetup> sizing_setup_;  ///< cache; reset when tgc_amp_ changes
     QImage image_;
     QImage top_image_;
     std::pair<double, double> top_gate_mm_{0, 0};
+    std::vector<float> top_peak_;   ///< top view projection [frames][N_x] (TCG applied)
+    std::vector<bool> top_have_;    ///< frames present in it
+    std::vector<double> top_x_mm_;  ///< its x axis, mm
     double render_ms_ = 0;
     double beamform_s_ = 0;
     double fidelity_db_ = 0;

@@ -1,6 +1,11 @@
 // SPDX-License-Identifier: MIT
 #include "ui/main/findings_dock.h"
 
+#include <QHBoxLayout>
+#include <QLabel>
+#include <QPushButton>
+#include <QVBoxLayout>
+
 #include "ui/calipers/measurement_table.h"
 #include "ui/controller/case_controller.h"
 #include "ui/findings/findings_pane.h"
@@ -39,7 +44,7 @@ FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
     auto refreshTable = [ctl, table] {
         std::map<std::string, std::vector<core::Quantity>> given;
         for (const auto& m : ctl->measurements())
-            if (m.kind == core::MeasurementKind::DropSizing) given[m.id] = ctl->quantities(m);
+            if (core::isImageSizing(m.kind)) given[m.id] = ctl->quantities(m);
         table->setMeasurements(ctl->measurements(), ctl->uncertaintyModel(), given);
         table->selectMeasurement(ctl->selectedMeasurement());
     };
@@ -48,7 +53,7 @@ FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
         pane->setKnownMeasurements(allMeasurementIds(ctl));
     });
     QObject::connect(ctl, &CaseController::captureChanged, table, refreshTable);
-    QObject::connect(ctl, &CaseController::imageChanged, table, refreshTable);  // pixel size may change
+    QObject::connect(ctl, &CaseController::imageChanged, table, refreshTable);  // pixel size may change; sizing reads the image
     QObject::connect(ctl, &CaseController::selectionChanged, table, [table](const QString& id) { table->selectMeasurement(id); });
 
     // Widgets -> controller (undoable edits).
@@ -74,9 +79,48 @@ FindingsDocks buildFindingsDocks(CaseController* ctl, QWidget* parent) {
     QObject::connect(table, &MeasurementTable::deleteRequested, ctl,
                      [ctl](const QString& id) { ctl->deleteMeasurement(id.toStdString()); });
 
+    // Findings whose numbers no longer match their measurement (recipe change, moved points):
+    // a banner above the pane until the user accepts the new values.
+    auto* holder = new QWidget(parent);
+    auto* lay = new QVBoxLayout(holder);
+    lay->setContentsMargins(0, 0, 0, 0);
+    lay->setSpacing(2);
+    auto* banner = new QWidget(holder);
+    banner->setObjectName(QStringLiteral("outOfDateBanner"));
+    banner->setStyleSheet(QStringLiteral("#outOfDateBanner { background: #5a4312; }"));
+    auto* blay = new QHBoxLayout(banner);
+    blay->setContentsMargins(6, 3, 6, 3);
+    auto* text = new QLabel(banner);
+    text->setWordWrap(true);
+    auto* accept = new QPushButton(QObject::tr("Use new values"), banner);
+    blay->addWidget(text, 1);
+    blay->addWidget(accept);
+    banner->hide();
+    lay->addWidget(banner);
+    lay->addWidget(pane, 1);
+    auto refreshBanner = [ctl, banner, text] {
+        const auto ids = ctl->outOfDateFindings();
+        if (ids.empty()) {
+            banner->hide();
+            return;
+        }
+        QStringList names;
+        for (const auto& id : ids)
+            for (const auto& f : ctl->findings())
+                if (f.id == id) names << QStringLiteral("F%1").arg(f.number);
+        text->setText(QObject::tr("Out of date: %1 — the linked measurement now gives other numbers (recipe or points changed).")
+                          .arg(names.join(", ")));
+        banner->show();
+    };
+    QObject::connect(accept, &QPushButton::clicked, ctl, [ctl] {
+        for (const auto& id : ctl->outOfDateFindings()) ctl->acceptMeasuredValues(id);
+    });
+    for (auto sig : {&CaseController::measurementsChanged, &CaseController::findingsChanged, &CaseController::imageChanged})
+        QObject::connect(ctl, sig, banner, refreshBanner);
+
     refreshDocument();
     refreshTable();
-    return {pane, table};
+    return {holder, table};
 }
 
 }  // namespace umbra::ui

@@ -8,6 +8,8 @@
 #include <QComboBox>
 #include <QDateTime>
 #include <QDir>
+#include <QDialog>
+#include <QDialogButtonBox>
 #include <QDockWidget>
 #include <QDragEnterEvent>
 #include <QDropEvent>
@@ -20,6 +22,7 @@
 #include <QMenuBar>
 #include <QMessageBox>
 #include <QMimeData>
+#include <QPlainTextEdit>
 #include <QProgressBar>
 #include <QSettings>
 #include <QSlider>
@@ -29,6 +32,7 @@
 #include <QToolBar>
 #include <QToolButton>
 #include <QUndoStack>
+#include <QVBoxLayout>
 
 #include <cmath>
 #include <cstdio>
@@ -276,6 +280,10 @@ void MainWindow::buildActions() {
         {Tool::Ellipse, tr("&Ellipse"), QKeySequence(Qt::Key_E), tr("Centre and two axis ends: axes, area, circumference")},
         {Tool::DropSizing, tr("−6 dB &sizing"), QKeySequence(Qt::Key_S),
          tr("Box around an indication: length and height where the amplitude stays within 6 dB of its peak")},
+        {Tool::Drop20Sizing, tr("−&20 dB sizing"), QKeySequence(Qt::Key_G),
+         tr("Box around an indication: length and height within 20 dB of its peak, beam spread removed")},
+        {Tool::TipSizing, tr("&Tip sizing"), QKeySequence(Qt::Key_T),
+         tr("Box around a flaw's two tip echoes: marks both tips; height = their depth difference")},
     };
     for (const auto& t : list) {
         QAction* ta = tools->addAction(t.text);
@@ -288,6 +296,48 @@ void MainWindow::buildActions() {
         const Tool tool = t.t;
         connect(ta, &QAction::triggered, this, [this, tool] { setTool(tool); });
     }
+    tools->addSeparator();
+    a = tools->addAction(tr("Uncertainty &budget of selected measurement…"), this, [this] {
+        const QString id = ctl_->selectedMeasurement();
+        const QString text = ctl_->budgetText(id.toStdString());
+        if (text.isEmpty()) {
+            QMessageBox::information(this, tr("Uncertainty budget"), tr("Select a measurement first."));
+            return;
+        }
+        QDialog dlg(this);
+        dlg.setWindowTitle(tr("Uncertainty budget — %1").arg(id));
+        auto* lay = new QVBoxLayout(&dlg);
+        auto* view = new QPlainTextEdit(text, &dlg);
+        view->setReadOnly(true);
+        view->setObjectName(QStringLiteral("budgetText"));
+        view->setMinimumSize(620, 360);
+        lay->addWidget(view);
+        auto* close = new QDialogButtonBox(QDialogButtonBox::Close, &dlg);
+        connect(close, &QDialogButtonBox::rejected, &dlg, &QDialog::reject);
+        lay->addWidget(close);
+        dlg.exec();
+    });
+    a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_U));
+    a = tools->addAction(tr("Speed-of-sound &uncertainty…"), this, [this] {
+        const auto [medium, rel] = ctl_->speedUncertainty();
+        const QStringList media{tr("guess from the speed"), "steel", "water", "soft tissue", "other"};
+        bool ok = false;
+        const QString m = QInputDialog::getItem(this, tr("Speed-of-sound uncertainty"),
+                                                tr("Medium (sets the default; now %1):").arg(QString::fromStdString(medium)), media, 0, false, &ok);
+        if (!ok) return;
+        const std::string med = m == media[0] ? std::string() : m.toStdString();
+        const double def = core::speedUncertaintyDefault(med.empty() ? medium : med).relative * 100;
+        const double pct = QInputDialog::getDouble(this, tr("Speed-of-sound uncertainty"),
+                                                   tr("Relative standard uncertainty of the speed of sound, % (default %1 %):").arg(def),
+                                                   def, 0.0, 50.0, 2, &ok);
+        if (!ok) return;
+        ctl_->setSpeedUncertainty(med, std::abs(pct - def) < 1e-9 ? std::nullopt : std::optional<double>(pct / 100));
+    });
+    a->setToolTip(tr("The case's relative uncertainty of the speed of sound, used in every depth's uncertainty budget"));
+    a = tools->addAction(tr("Size the selected box tip to tip"), this, [this] {
+        ctl_->changeSizingKind(ctl_->selectedMeasurement().toStdString(), core::MeasurementKind::TipSizing);
+    });
+    a->setToolTip(tr("Turns the selected −6 dB or −20 dB box into tip sizing (offered when the box holds two or more peaks)"));
     tools->addSeparator();
     a = tools->addAction(tr("Add &finding from selected measurement"), this, &MainWindow::addFindingFromSelection);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_F));
@@ -688,7 +738,7 @@ void MainWindow::addFindingFromSelection() {
         return;
     }
     const std::string fid = ctl_->addFindingFromMeasurement(id.toStdString());
-    if (auto* pane = qobject_cast<FindingsPane*>(findings_)) pane->selectFinding(QString::fromStdString(fid));
+    if (auto* pane = findings_->findChild<FindingsPane*>()) pane->selectFinding(QString::fromStdString(fid));
     statusBar()->showMessage(tr("Finding added from %1: describe what is seen in the Findings pane").arg(id), 6000);
 }
 
@@ -833,7 +883,7 @@ void MainWindow::demoAnnotate() {
     ctl_->addMeasurement(cal);
     ctl_->setSelectedMeasurement(QString::fromStdString(box_id));
     const std::string fid = ctl_->addFindingFromMeasurement(box_id);
-    if (auto* pane = qobject_cast<FindingsPane*>(findings_)) pane->selectFinding(QString::fromStdString(fid));
+    if (auto* pane = findings_->findChild<FindingsPane*>()) pane->selectFinding(QString::fromStdString(fid));
     auto fs = ctl_->findings();
     for (auto& x : fs)
         if (x.id == fid)

@@ -8,6 +8,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/uncertainty.h"
 #include "ui/controller/case_controller.h"
 #include "ui/viewer/scene_painter.h"
 
@@ -78,7 +79,7 @@ void TopView::paintEvent(QPaintEvent*) {
     const bool stopped = ctl_->topViewIncomplete();
     const double right = finish_->isVisible() ? finish_->x() - 6 : width() - 8;
     p.drawText(QRectF(8, 2, right - 8, 18), Qt::AlignLeft | Qt::AlignVCenter,
-               (stopped ? tr("Peak, depth %1–%2 mm · %3 of %4 frames (stopped)") : tr("Peak, depth %1–%2 mm · %3 of %4 frames"))
+               (stopped ? tr("Peak, depth %1–%2 mm · %3 of %4 frames (stopped)") : tr("Peak, depth %1–%2 mm · %3 of %4 frames · right-drag measures"))
                    .arg(ctl_->topViewGateMm().first, 0, 'f', 1)
                    .arg(ctl_->topViewGateMm().second, 0, 'f', 1)
                    .arg(ctl_->topViewFramesDone())
@@ -122,17 +123,91 @@ void TopView::paintEvent(QPaintEvent*) {
     p.setPen(QPen(QColor(255, 255, 255, 220), 1.5));
     p.setBrush(Qt::NoBrush);
     p.drawRect(QRectF(r.left(), cy - rowh / 2, r.width(), rowh));
+    // Measuring line.
+    if (meas_a_ && meas_b_) {
+        const QColor mc(120, 220, 255);
+        p.setPen(QPen(mc, 1.5));
+        const QPointF a = toPx(*meas_a_), b = toPx(*meas_b_);
+        p.drawLine(a, b);
+        p.setPen(QPen(mc, 0.8, Qt::DashLine));
+        p.drawRect(QRectF(a, b).normalized());
+        const QString t = measureText();
+        QFontMetricsF fm(p.font());
+        QRectF box = fm.boundingRect(QRectF(0, 0, 420, 200), Qt::TextWordWrap, t).adjusted(-4, -2, 4, 2);
+        box.moveTopLeft(QPointF(std::min(std::max(a.x(), b.x()) + 8, r.right() - box.width()), std::max(r.top(), std::min(a.y(), b.y()))));
+        p.setPen(Qt::NoPen);
+        p.setBrush(QColor(10, 12, 16, 210));
+        p.drawRoundedRect(box, 3, 3);
+        p.setPen(mc);
+        p.drawText(box, Qt::AlignCenter | Qt::TextWordWrap, t);
+    }
+}
+
+std::optional<QPointF> TopView::toMm(QPointF px) const {
+    const core::Frame* fr = ctl_->envelope();
+    const QRectF r = plotRect();
+    const long f = frameAt(px.y());
+    if (!fr || f < 0 || !ctl_->header().scan || size_t(f) >= ctl_->header().scan->position_m.size()) return std::nullopt;
+    const double x0 = fr->x_m.front() * 1e3, x1 = fr->x_m.back() * 1e3;
+    const double x = x0 + std::clamp((px.x() - r.left()) / r.width(), 0.0, 1.0) * (x1 - x0);
+    return QPointF(x, ctl_->header().scan->position_m[size_t(f)] * 1e3);
+}
+
+QPointF TopView::toPx(QPointF mm) const {
+    const core::Frame* fr = ctl_->envelope();
+    const QRectF r = plotRect();
+    if (!fr || !ctl_->header().scan) return r.topLeft();
+    const double x0 = fr->x_m.front() * 1e3, x1 = fr->x_m.back() * 1e3;
+    const auto& pos = ctl_->header().scan->position_m;
+    size_t best = 0;
+    for (size_t i = 0; i < pos.size(); ++i)
+        if (std::abs(pos[i] * 1e3 - mm.y()) < std::abs(pos[best] * 1e3 - mm.y())) best = i;
+    const double rowh = r.height() / static_cast<double>(std::max<size_t>(1, ctl_->frameCount()));
+    return QPointF(r.left() + (mm.x() - x0) / (x1 - x0) * r.width(), r.top() + (static_cast<double>(best) + 0.5) * rowh);
+}
+
+void TopView::setMeasureLine(QPointF a, QPointF b) {
+    meas_a_ = a;
+    meas_b_ = b;
+    update();
+}
+
+QString TopView::measureText() const {
+    if (!meas_a_ || !meas_b_) return {};
+    const auto m = ctl_->topViewMeasure(meas_a_->x(), meas_a_->y(), meas_b_->x(), meas_b_->y());
+    if (!m) return {};
+    QString t = QString::fromStdString(core::formatMeasured(m->end_to_end));
+    if (m->scan_length && m->scan_length->found && m->scan_length->length) {
+        t += QStringLiteral("\n") + QString::fromStdString(core::formatMeasured(*m->scan_length->length));
+        for (const auto& w : m->scan_length->warnings) t += QStringLiteral("\n") + tr("warning: %1").arg(QString::fromStdString(w));
+    }
+    return t;
 }
 
 void TopView::mousePressEvent(QMouseEvent* e) {
+    if (e->button() == Qt::RightButton || (e->button() == Qt::LeftButton && (e->modifiers() & Qt::ShiftModifier))) {
+        if (const auto p = toMm(e->position())) {
+            meas_a_ = meas_b_ = *p;
+            measuring_ = true;
+            update();
+        }
+        return;
+    }
     const long f = frameAt(e->position().y());
     if (f >= 0 && e->button() == Qt::LeftButton) ctl_->setCurrentFrame(static_cast<size_t>(f));
 }
 
 void TopView::mouseMoveEvent(QMouseEvent* e) {
+    if (measuring_) {
+        if (const auto p = toMm(e->position())) meas_b_ = *p;
+        update();
+        return;
+    }
     if (!(e->buttons() & Qt::LeftButton)) return;
     const long f = frameAt(e->position().y());
     if (f >= 0) ctl_->setCurrentFrame(static_cast<size_t>(f));
 }
+
+void TopView::mouseReleaseEvent(QMouseEvent*) { measuring_ = false; }
 
 }  // namespace umbra::ui

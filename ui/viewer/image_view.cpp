@@ -20,12 +20,14 @@ QString toolName(Tool t) {
         case Tool::ExtentBox: return QStringLiteral("extent box");
         case Tool::Ellipse: return QStringLiteral("ellipse");
         case Tool::DropSizing: return QStringLiteral("-6 dB sizing");
+        case Tool::Drop20Sizing: return QStringLiteral("-20 dB sizing");
+        case Tool::TipSizing: return QStringLiteral("tip sizing");
     }
     return {};
 }
 
 Tool toolFromName(const QString& n) {
-    for (Tool t : {Tool::Caliper, Tool::DepthMarker, Tool::ExtentBox, Tool::Ellipse, Tool::DropSizing})
+    for (Tool t : {Tool::Caliper, Tool::DepthMarker, Tool::ExtentBox, Tool::Ellipse, Tool::DropSizing, Tool::Drop20Sizing, Tool::TipSizing})
         if (toolName(t) == n) return t;
     return Tool::Select;
 }
@@ -153,9 +155,9 @@ Scene ImageView::scene() const {
     s.colour_map = ctl_->colourMap();
     s.measurements = shownMeasurements();
     for (const auto& m : s.measurements)
-        if (m.kind == core::MeasurementKind::DropSizing) {
-            if (const auto d = ctl_->dropSizing(m); d && d->found) {
-                s.drop_sizings[m.id] = *d;
+        if (core::isImageSizing(m.kind)) {
+            if (const auto d = ctl_->sizing(m); d && d->found) {
+                s.sizings[m.id] = *d;
                 s.quantities[m.id] = ctl_->quantities(m);
             }
         }
@@ -228,7 +230,7 @@ std::optional<std::pair<std::string, int>> ImageView::hit(const QPointF& px) con
             on = std::hypot(q.x() - px.x(), q.y() - px.y()) < 5;
         } else if (m.kind == core::MeasurementKind::DepthMarker && p.size() == 1) {
             on = std::abs(px.y() - p[0].y()) < 4;
-        } else if ((m.kind == core::MeasurementKind::ExtentBox || m.kind == core::MeasurementKind::DropSizing) && p.size() == 2) {
+        } else if ((m.kind == core::MeasurementKind::ExtentBox || core::isImageSizing(m.kind)) && p.size() == 2) {
             on = QRectF(p[0], p[1]).normalized().adjusted(-3, -3, 3, 3).contains(px);
         } else if (m.kind == core::MeasurementKind::Ellipse && p.size() == 3) {
             const QPointF a1 = p[1] - p[0], a2 = p[2] - p[0], d = px - p[0];
@@ -323,6 +325,8 @@ void ImageView::mousePressEvent(QMouseEvent* e) {
         case Tool::DepthMarker: m.kind = core::MeasurementKind::DepthMarker; m.points = {p}; drag_index_ = 0; break;
         case Tool::ExtentBox: m.kind = core::MeasurementKind::ExtentBox; m.points = {p, p}; drag_index_ = 1; break;
         case Tool::DropSizing: m.kind = core::MeasurementKind::DropSizing; m.points = {p, p}; drag_index_ = 1; break;
+        case Tool::Drop20Sizing: m.kind = core::MeasurementKind::Drop20Sizing; m.points = {p, p}; drag_index_ = 1; break;
+        case Tool::TipSizing: m.kind = core::MeasurementKind::TipSizing; m.points = {p, p}; drag_index_ = 1; break;
         case Tool::Ellipse: m.kind = core::MeasurementKind::Ellipse; m.points = {p, p, p}; drag_index_ = 1; break;
         case Tool::Select: break;
     }

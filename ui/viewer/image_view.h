@@ -17,7 +17,7 @@ namespace umbra::ui {
 
 class CaseController;
 
-enum class Tool { Select, Caliper, DepthMarker, ExtentBox, Ellipse, DropSizing };
+enum class Tool { Select, Caliper, DepthMarker, ExtentBox, Ellipse, DropSizing, Drop20Sizing, TipSizing };
 /// "select", "caliper", "depth marker", "extent box", "ellipse" (stored in the case).
 QString toolName(Tool t);
 Tool toolFromName(const QString& name);

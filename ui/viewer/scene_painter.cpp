@@ -37,6 +37,8 @@ QColor measurementColour(core::MeasurementKind kind) {
         case core::MeasurementKind::ExtentBox: return QColor(140, 240, 160);
         case core::MeasurementKind::Ellipse: return QColor(255, 150, 200);
         case core::MeasurementKind::DropSizing: return QColor(255, 170, 90);
+        case core::MeasurementKind::Drop20Sizing: return QColor(255, 120, 70);
+        case core::MeasurementKind::TipSizing: return QColor(200, 160, 255);
     }
     return Qt::white;
 }
@@ -73,6 +75,15 @@ QString measurementLabel(const core::Measurement& m, const core::UncertaintyMode
             pick("length −6 dB");
             pick("height −6 dB");
             if (parts.size() == 2) parts[1] += QStringLiteral(" (−6 dB)");
+            break;
+        case core::MeasurementKind::Drop20Sizing:
+            pick("length −20 dB");
+            pick("height −20 dB");
+            if (parts.size() == 2) parts[1] += QStringLiteral(" (−20 dB)");
+            break;
+        case core::MeasurementKind::TipSizing:
+            pick("height (tip to tip)");
+            if (!parts.isEmpty()) parts[0] = QStringLiteral("tips ") + parts[0];
             break;
     }
     if (parts.isEmpty() && !q.empty()) parts << QString::fromStdString(core::formatQuantity(q.back()));
@@ -144,7 +155,31 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
                 label_at = QPointF(std::max(px[0].x(), px[1].x()), std::min(px[0].y(), px[1].y()));
             }
             break;
+        case core::MeasurementKind::TipSizing:
+            if (px.size() >= 2) {
+                // The search box, dashed; each tip marked with a cross and joined by a dotted line.
+                const QRectF box = QRectF(px[0], px[1]).normalized();
+                p.setPen(QPen(col, 0.8 * k, Qt::DashLine));
+                p.drawRect(box);
+                p.setPen(pen);
+                label_at = QPointF(box.right(), box.top());
+                auto it = sc.sizings.find(m.id);
+                if (it != sc.sizings.end() && it->second.tips.size() == 2) {
+                    const QPointF a = vt.toPixel(QPointF(it->second.tips[0].x_mm, it->second.tips[0].z_mm));
+                    const QPointF b = vt.toPixel(QPointF(it->second.tips[1].x_mm, it->second.tips[1].z_mm));
+                    const double tk = 7 * k;
+                    for (const QPointF& t : {a, b}) {
+                        p.drawLine(t + QPointF(-tk, -tk), t + QPointF(tk, tk));
+                        p.drawLine(t + QPointF(-tk, tk), t + QPointF(tk, -tk));
+                    }
+                    p.setPen(QPen(col, 0.8 * k, Qt::DotLine));
+                    p.drawLine(a, b);
+                    p.setPen(pen);
+                }
+            }
+            break;
         case core::MeasurementKind::DropSizing:
+        case core::MeasurementKind::Drop20Sizing:
             if (px.size() >= 2) {
                 // The search box, thin and dashed; the −6 dB extents as a cross with end ticks
                 // (an open edge — not reached inside the box — gets an arrow-like open tick).
@@ -154,9 +189,9 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
                 p.drawRect(box);
                 p.setPen(pen);
                 label_at = QPointF(box.right(), box.top());
-                auto it = sc.drop_sizings.find(m.id);
-                if (it != sc.drop_sizings.end() && it->second.found) {
-                    const auto& d = it->second;
+                auto it = sc.sizings.find(m.id);
+                if (it != sc.sizings.end() && it->second.found) {
+                    const auto& d = it->second.drop;
                     const QPointF l = vt.toPixel(QPointF(d.left_x_mm, d.peak_z_mm));
                     const QPointF r = vt.toPixel(QPointF(d.right_x_mm, d.peak_z_mm));
                     const QPointF t = vt.toPixel(QPointF(d.peak_x_mm, d.top_z_mm));
@@ -216,6 +251,10 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
     QString text = measurementLabel(m, sc.uncertainty, qit == sc.quantities.end() ? nullptr : &qit->second);
     auto it = sc.finding_numbers.find(m.id);
     if (it != sc.finding_numbers.end()) text = QStringLiteral("F%1 · ").arg(it->second) + text;
+    if (auto sz = sc.sizings.find(m.id); sz != sc.sizings.end()) {
+        if (sz->second.resolution_limited) text += QStringLiteral("  [resolution-limited]");
+        if (sz->second.offer_tips) text += QStringLiteral("  [%1 peaks: try tip sizing (T)]").arg(sz->second.peaks.size());
+    }
     drawLabel(p, label_at, text, sel ? Qt::white : col, k, vt.viewport());
 }
 

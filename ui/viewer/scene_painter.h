@@ -15,8 +15,8 @@
 #include <string>
 #include <vector>
 
-#include "core/drop_sizing.h"
 #include "core/measurement.h"
+#include "core/sizing.h"
 #include "ui/viewer/view_transform.h"
 
 namespace umbra::ui {
@@ -34,7 +34,7 @@ struct Scene {
     QString message;                                ///< shown centred when there is no image
     /// Quantities per measurement id when they need the image (−6 dB sizing); else evaluate().
     std::map<std::string, std::vector<core::Quantity>> quantities;
-    std::map<std::string, core::DropSizing> drop_sizings;  ///< −6 dB sizing results by measurement id
+    std::map<std::string, core::SizingResult> sizings;  ///< image sizing results (drop edges, tips) by measurement id
 };
 
 /// Layout and look of one rendering.
