@@ -28,11 +28,7 @@ using testutil::PeakAt;
 // A 2 mm square region around (x, z) with a fine step (lambda/60 in steel at 5 MHz), so the
 // grid loses nothing measurable: what is left is the beamformer's own amplitude.
 core::Frame around(const std::string& path, core::Recipe r, double x_mm, double z_mm) {
-    r.setNumber("grid.x_min_mm", x_mm - 1);
-    r.setNumber("grid.x_max_mm", x_mm + 1);
-    r.setNumber("grid.z_min_mm", z_mm - 1);
-    r.setNumber("grid.z_max_mm", z_mm + 1);
-    r.setNumber("grid.step_mm", 0.02);
+    testutil::setRegion(r, x_mm - 1, x_mm + 1, z_mm - 1, z_mm + 1, 0.02);
     core::CaptureReader cap(path);
     recon::Reconstructor rec(cap, r, 2);
     return rec.run(0);
@@ -186,10 +182,7 @@ TEST(amplitude_truth_test, band_pass_removes_dc_offset) {
         w.finish();
     }
     auto haze = [&](core::Recipe r, const std::string& path) {
-        r.setNumber("grid.x_min_mm", -5);
-        r.setNumber("grid.x_max_mm", 5);
-        r.setNumber("grid.z_min_mm", 5);
-        r.setNumber("grid.z_max_mm", 25);
+        testutil::setRegion(r, -5, 5, 5, 25);
         core::CaptureReader cap(path);
         recon::Reconstructor rec(cap, r, 2);
         const core::Frame f = rec.run(0);

@@ -76,11 +76,7 @@ TEST(point_spread_test, hann_width_matches_the_beamformer) {
     auto r = recon::defaultRecipe();
     r.setNumber("das.f_number", 2.0);
     r.setText("das.apodization", "hann");
-    r.setNumber("grid.x_min_mm", -2.5);
-    r.setNumber("grid.x_max_mm", 2.5);
-    r.setNumber("grid.z_min_mm", 11.5);
-    r.setNumber("grid.z_max_mm", 12.5);
-    r.setNumber("grid.step_mm", 0.01);
+    testutil::setRegion(r, -2.5, 2.5, 11.5, 12.5, 0.01);
     core::CaptureReader cap(path);
     recon::Reconstructor rec(cap, r, 2);
     const auto f = rec.run(0);

@@ -11,6 +11,7 @@
 #include "reconstruction/pipeline.h"
 
 using namespace umbra;
+using testutil::setRegion;
 
 namespace {
 
@@ -36,15 +37,6 @@ double halfWidth(const std::vector<double>& axis, const std::vector<float>& prof
     const double xa = axis[a] + (half - prof[a]) / (prof[a + 1] - prof[a]) * (axis[a + 1] - axis[a]);
     const double xb = axis[b - 1] + (half - prof[b - 1]) / (prof[b] - prof[b - 1]) * (axis[b] - axis[b - 1]);
     return xb - xa;
-}
-
-// Sets the image region (mm) and, when step_mm > 0, the pixel step.
-void setRegion(core::Recipe& r, double x0, double x1, double z0, double z1, double step_mm = 0) {
-    r.setNumber("grid.x_min_mm", x0);
-    r.setNumber("grid.x_max_mm", x1);
-    r.setNumber("grid.z_min_mm", z0);
-    r.setNumber("grid.z_max_mm", z1);
-    if (step_mm > 0) r.setNumber("grid.step_mm", step_mm);
 }
 
 core::Frame reconstruct(const std::string& path, core::Recipe r) {

@@ -16,6 +16,7 @@
 
 #include "core/capture.h"
 #include "core/capture_file.h"
+#include "core/parameters.h"
 #include "core/frame.h"
 
 namespace umbra::testutil {
@@ -132,6 +133,15 @@ inline PeakAt framePeak(const core::Frame& f, double x_m = 0, double z_m = 0, do
     if (bi > 0 && bi + 1 < f.nz()) dz = vertex(f.at(bi - 1, bj), bv, f.at(bi + 1, bj));
     const double step = f.x_m.size() > 1 ? f.x_m[1] - f.x_m[0] : 0;
     return {f.x_m[bj] + dx * step, f.z_m[bi] + dz * step, bv};
+}
+
+/// Sets the recipe's image region (mm) and, when step_mm > 0, the pixel step.
+inline void setRegion(core::Recipe& r, double x0, double x1, double z0, double z1, double step_mm = 0) {
+    r.setNumber("grid.x_min_mm", x0);
+    r.setNumber("grid.x_max_mm", x1);
+    r.setNumber("grid.z_min_mm", z0);
+    r.setNumber("grid.z_max_mm", z1);
+    if (step_mm > 0) r.setNumber("grid.step_mm", step_mm);
 }
 
 /// This test process's scratch directory (removed when the process exits).

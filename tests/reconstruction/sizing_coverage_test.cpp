@@ -80,11 +80,7 @@ Image reconstructFrame(const std::string& path, const Setting& s, size_t frame =
     auto r = recon::defaultRecipe();
     r.setNumber("das.f_number", s.f_number);
     r.setText("das.apodization", s.apodization);
-    r.setNumber("grid.x_min_mm", -9);
-    r.setNumber("grid.x_max_mm", 9);
-    r.setNumber("grid.z_min_mm", 5);
-    r.setNumber("grid.z_max_mm", 17);
-    r.setNumber("grid.step_mm", s.step_mm);
+    testutil::setRegion(r, -9, 9, 5, 17, s.step_mm);
     recon::Reconstructor rec(cap, r, 2);
     Image im;
     im.frame = rec.run(frame);
@@ -170,11 +166,7 @@ TEST(sizing_coverage_test, expanded_uncertainty_covers_simulated_truth) {
     {
         core::CaptureReader cap(pc);
         auto r = recon::defaultRecipe();
-        r.setNumber("grid.x_min_mm", -7);
-        r.setNumber("grid.x_max_mm", 7);
-        r.setNumber("grid.z_min_mm", 7);
-        r.setNumber("grid.z_max_mm", 14);
-        r.setNumber("grid.step_mm", 0.2);
+        testutil::setRegion(r, -7, 7, 7, 14, 0.2);
         recon::Reconstructor rec(cap, r, 2);
         core::ImageStack st;
         st.x_m = rec.grid().xAxis();
