@@ -40,7 +40,7 @@ int main(int argc, char** argv) {
         if (a.positional().size() != 1) throw cli::UsageError("missing argument CASE.umbracase (see --help)");
         const auto out = a.value("-o");
         if (!out) throw cli::UsageError("option -o REPORT.pdf is required");
-        report::ReportSettings settings;
+        ui::report::ReportSettings settings;
         if (auto t = a.value("--threads")) settings.threads = int(cli::parseWholeNumber("--threads", *t, 1, 256));
         if (auto w = a.value("--image-width")) settings.image_width_px = int(cli::parseWholeNumber("--image-width", *w, 400, 6000));
         settings.software = QStringLiteral("Umbra %1 (umbra-cli report)").arg(QStringLiteral(UMBRA_VERSION));
@@ -50,7 +50,7 @@ int main(int argc, char** argv) {
         if (!std::getenv("QT_QPA_PLATFORM")) setenv("QT_QPA_PLATFORM", "offscreen", 1);
         int qargc = 1;
         QGuiApplication app(qargc, argv);
-        const report::Report r(doc, QString::fromStdString(a.positional()[0]), settings);
+        const ui::report::Report r(doc, QString::fromStdString(a.positional()[0]), settings);
         r.writePdf(QString::fromStdString(*out));
         std::printf("report written to %s (%zu finding(s)%s)\n", out->c_str(), doc.findings.size(),
                     r.synthetic() ? ", synthetic data" : "");

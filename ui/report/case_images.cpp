@@ -96,7 +96,7 @@ CaseImages::CaseImages(const core::CaseDocument& doc, bool isolated_check, int t
         if (isolated_check) {
             const auto problems = core::checkCaptureIsolated(c.path, false);
             if (!problems.empty()) {
-                info.problem = QStringLiteral("%1: %2").arg(info.path, QString::fromStdString(problems.front().message));
+                info.problem = QStringLiteral("%1: %2").arg(info.path, QString::fromStdString(problems.front().where + ": " + problems.front().what));
                 continue;
             }
         }

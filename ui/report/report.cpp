@@ -17,6 +17,7 @@
 #include <filesystem>
 #include <fstream>
 #include <optional>
+#include <set>
 
 #include "core/capture_file.h"
 #include "core/distance_amplitude.h"
@@ -147,6 +148,12 @@ QString referenceText(const core::CaseDocument& doc) {
     return s;
 }
 
+/// A SHA-256 on a line of its own in a small fixed-width font, so that it is never broken.
+QString hashLine(const QString& what, const QString& hex) {
+    return QStringLiteral("<p><b>%1:</b><br/><span style=\"font-family:'DejaVu Sans Mono',monospace; font-size:7.5pt\">%2</span></p>")
+        .arg(what.toHtmlEscaped(), hex.toHtmlEscaped());
+}
+
 QString table(const QList<QPair<QString, QString>>& rows) {
     QString t = QStringLiteral("<table cellspacing=\"0\" cellpadding=\"3\" width=\"100%\">");
     for (const auto& [k, v] : rows)
@@ -252,7 +259,7 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                            .arg(g.z_max_m * 1e3, 0, 'f', 1)
                            .arg(recon::amplitudeFidelityDb(h, r, g), 0, 'f', 2);
             } catch (const std::exception& e) {
-                grid = QStringLiteral("cannot be made: %1").arg(esc(e.what()));
+                grid = QStringLiteral("cannot be made: %1").arg(esc(std::string(e.what())));
             }
             rows << qMakePair(QStringLiteral("Image grid"), grid);
             rows << qMakePair(QStringLiteral("TCG"), esc(tgcText(h, r)));
@@ -315,6 +322,20 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                         now[field] = q.value;
                     }
                 }
+                // A position read off the image without a sizing: the budget of a depth marker there
+                // (half a pixel, point spread, speed of sound), as the depth-marker tool gives it.
+                if (!U.count(QStringLiteral("depth")) && in.depth_mm && in.capture_index < images.captureCount())
+                    if (const FrameImage* fi = images.frame(in.capture_index, in.frame_index)) {
+                        core::Measurement marker;
+                        marker.kind = core::MeasurementKind::DepthMarker;
+                        marker.frame_index = in.frame_index;
+                        marker.points = {{in.x_mm.value_or(0), *in.depth_mm}};
+                        try {
+                            for (const auto& q : core::evaluate(marker, fi->model))
+                                if (q.name == "depth") U[QStringLiteral("depth")] = core::kCoverageFactor * q.uncertainty;
+                        } catch (const std::exception&) {
+                        }
+                    }
                 QStringList vals;
                 auto add = [&](const char* label, const char* field, const std::optional<double>& v) {
                     if (!v) return;
@@ -479,15 +500,16 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
         rows << qMakePair(QStringLiteral("Report made"), QDateTime::currentDateTimeUtc().toString(QStringLiteral("yyyy-MM-dd HH:mm 'UTC'")));
         if (!case_path.isEmpty()) {
             rows << qMakePair(QStringLiteral("Case file"), esc(QFileInfo(case_path).absoluteFilePath()));
-            const QString h = fileSha256(case_path);
-            if (!h.isEmpty()) rows << qMakePair(QStringLiteral("Case file SHA-256"), QStringLiteral("<tt>%1</tt>").arg(h));
         }
         s.html += table(rows);
+        if (!case_path.isEmpty()) {
+            const QString h = fileSha256(case_path);
+            if (!h.isEmpty()) s.html += hashLine(QStringLiteral("Case file SHA-256"), h);
+        }
         for (size_t i = 0; i < images.captureCount(); ++i) {
             const CaptureInfo& ci = images.capture(i);
             QList<QPair<QString, QString>> cr;
             cr << qMakePair(QStringLiteral("File"), esc(ci.path));
-            cr << qMakePair(QStringLiteral("SHA-256"), QStringLiteral("<tt>%1</tt>").arg(esc(ci.sha256_recorded)));
             cr << qMakePair(QStringLiteral("Check"), ci.status == core::CaptureStatus::Ok ? QStringLiteral("the file's bytes match the recorded SHA-256")
                                                      : ci.status == core::CaptureStatus::Changed
                                                          ? QStringLiteral("<b>the file's bytes differ from the recorded SHA-256</b>")
@@ -498,10 +520,10 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                 cr << qMakePair(QStringLiteral("Origin"), ci.header->isSynthetic() ? QStringLiteral("<b>synthetic data</b> (simulated)")
                                                                                     : QStringLiteral("recorded data (per the capture's provenance)"));
             }
-            cr << qMakePair(QStringLiteral("Recipe"), ci.recipe_default ? QStringLiteral("defaults (none in the case): ") +
-                                                                              QStringLiteral("<tt>%1</tt>").arg(esc(QString::fromStdString(ci.recipe.toJson(-1))))
-                                                                        : QStringLiteral("<tt>%1</tt>").arg(esc(QString::fromStdString(ci.recipe.toJson(-1)))));
-            s.html += QStringLiteral("<p><b>Capture %1</b></p>").arg(i + 1) + table(cr);
+            const QString recipe_text = QStringLiteral("<span style=\"font-size:7pt\">%1</span>").arg(esc(QString::fromStdString(ci.recipe.toJson(-1))));
+            cr << qMakePair(QStringLiteral("Recipe"), ci.recipe_default ? QStringLiteral("defaults (none in the case): ") + recipe_text : recipe_text);
+            s.html += QStringLiteral("<p><b>Capture %1</b></p>").arg(i + 1) +
+                      hashLine(QStringLiteral("SHA-256 (recorded in the case)"), QString::fromStdString(ci.sha256_recorded)) + table(cr);
         }
         sections_.push_back(s);
     }
