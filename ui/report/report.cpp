@@ -307,6 +307,7 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                 const auto& in = f.indication;
                 std::map<QString, double> U;  // field -> expanded uncertainty
                 std::map<QString, double> now;
+                std::set<QString> upper;  // resolution-limited extents: the true value may be smaller
                 QStringList ms;
                 for (const auto& id : in.measurement_ids) {
                     auto it = by_id.find(id);
@@ -320,6 +321,7 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                         if (field.isEmpty() || U.count(field)) continue;
                         U[field] = core::kCoverageFactor * q.uncertainty;
                         now[field] = q.value;
+                        if (q.upper_bound) upper.insert(field);
                     }
                 }
                 // A position read off the image without a sizing: the budget of a depth marker there
@@ -342,6 +344,10 @@ Report::Report(const core::CaseDocument& doc, const QString& case_path, const Re
                     const QString k = QString::fromLatin1(field);
                     const auto u = U.count(k) ? std::optional(U[k]) : std::nullopt;
                     QString t = QStringLiteral("%1 %2").arg(QString::fromLatin1(label), withUncertainty(*v, u, "mm"));
+                    if (upper.count(k))
+                        t = QStringLiteral("%1 ≤ %2 mm (resolution-limited: the true extent may be smaller; U = %3 mm, k = 2)")
+                                .arg(QString::fromLatin1(label), QString::fromStdString(nlohmann::json(*v).dump()))
+                                .arg(QString::fromStdString(core::roundToUncertainty(*u, *u).uncertainty_text));
                     if (u && now.count(k) && std::abs(now[k] - *v) > *u)
                         t += QStringLiteral(" <span style=\"color:#a00000\">(the image now gives %1: check)</span>")
                                  .arg(QString::fromStdString(core::formatWithUncertainty(now[k], *u, "mm")));
