@@ -10,6 +10,8 @@
 #include <QProcess>
 #include <QUndoStack>
 
+#include <algorithm>
+
 #include "core/case_file.h"
 #include "ui/controller/case_controller.h"
 #include "ui/export/image_export.h"
@@ -78,8 +80,13 @@ TEST(report_test, workstation_report_has_header_finding_and_page_numbers) {
     EXPECT_TRUE(t.contains("F1"));
     EXPECT_TRUE(t.contains("page 1 of"));
     EXPECT_TRUE(t.contains("synthetic data", Qt::CaseInsensitive));  // the test capture is labelled synthetic
-    EXPECT_LT(t.indexOf("Technique"), t.indexOf("Findings"));
-    EXPECT_LT(t.indexOf("Findings"), t.indexOf("Provenance"));
+    // Section headings in order (each searched after the previous one).
+    qsizetype at = 0;
+    for (const char* heading : {"Technique", "Findings", "Images", "Cautions", "Provenance", "Sign-"}) {
+        const qsizetype i = t.indexOf(QLatin1String(heading), at);
+        EXPECT_GE(i, at) << heading;
+        at = std::max(at, i);
+    }
 }
 
 TEST(report_test, light_theme_export_is_on_white_with_named_values) {
