@@ -18,6 +18,15 @@ const char* toString(TransmitKind k) {
     return "?";
 }
 
+const char* transmitLabel(TransmitKind k) {
+    switch (k) {
+        case TransmitKind::SingleElement: return "full matrix";
+        case TransmitKind::PlaneWave: return "plane waves";
+        case TransmitKind::VirtualSource: return "virtual sources";
+    }
+    return "?";
+}
+
 std::optional<TransmitKind> transmitKindFromString(const std::string& s) {
     if (s == "single_element") return TransmitKind::SingleElement;
     if (s == "plane_wave") return TransmitKind::PlaneWave;

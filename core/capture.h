@@ -17,6 +17,8 @@ enum class TransmitKind { SingleElement, PlaneWave, VirtualSource };
 /// "single_element", "plane_wave", "virtual_source"
 const char* toString(TransmitKind k);
 std::optional<TransmitKind> transmitKindFromString(const std::string& s);
+/// Words for users (captions, reports): "full matrix", "plane waves", "virtual sources".
+const char* transmitLabel(TransmitKind k);
 
 enum class SampleType { Int16, Float32 };
 

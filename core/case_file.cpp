@@ -334,6 +334,11 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
     j["format"] = kFormatTag;
     j["version"] = kCaseVersion;
     j["title"] = doc.title;
+    if (!doc.header.empty())
+        j["report_header"] = json{{"part", doc.header.part},         {"site", doc.header.site},
+                                  {"date", doc.header.date},         {"examiner", doc.header.examiner},
+                                  {"reviewer", doc.header.reviewer}, {"procedure", doc.header.procedure},
+                                  {"criteria", doc.header.criteria}};
     j["background"] = doc.background;
     j["technique"] = doc.technique;
     j["pertinent_negatives"] = doc.pertinent_negatives;
@@ -423,6 +428,16 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
     CaseDocument doc;
     doc.version = kCaseVersion;
     doc.title = r.text(j, "", "title");
+    if (j.contains("report_header") && !j["report_header"].is_null()) {
+        const json& hj = r.object(j["report_header"], "report_header");
+        doc.header.part = r.text(hj, "report_header", "part");
+        doc.header.site = r.text(hj, "report_header", "site");
+        doc.header.date = r.text(hj, "report_header", "date");
+        doc.header.examiner = r.text(hj, "report_header", "examiner");
+        doc.header.reviewer = r.text(hj, "report_header", "reviewer");
+        doc.header.procedure = r.text(hj, "report_header", "procedure");
+        doc.header.criteria = r.text(hj, "report_header", "criteria");
+    }
     doc.background = r.text(j, "", "background");
     doc.technique = r.text(j, "", "technique");
     doc.pertinent_negatives = r.texts(j, "", "pertinent_negatives");

@@ -36,9 +36,27 @@ struct CaseCapture {
     bool operator==(const CaseCapture&) const = default;
 };
 
+/// Report header fields, entered by the user (never filled in by the program; blank = the
+/// report leaves a line to write on).
+struct ReportHeader {
+    std::string part;        ///< the part examined, e.g. "Weld W-12, 25 mm plate"
+    std::string site;        ///< where it was examined
+    std::string date;        ///< date of the examination as the user writes it (ISO 8601 advised)
+    std::string examiner;    ///< name (and qualification) of the examiner
+    std::string reviewer;    ///< name (and qualification) of the reviewer
+    std::string procedure;   ///< written procedure followed (number, revision)
+    std::string criteria;    ///< acceptance criteria / code referenced
+    bool empty() const {
+        return part.empty() && site.empty() && date.empty() && examiner.empty() && reviewer.empty() &&
+               procedure.empty() && criteria.empty();
+    }
+    bool operator==(const ReportHeader&) const = default;
+};
+
 struct CaseDocument {
     int version = kCaseVersion;
     std::string title;
+    ReportHeader header;        ///< report header fields (case file key "report_header")
     std::string background;     ///< why the examination was ordered
     std::string technique;      ///< technique block text (filled from capture + recipe)
     std::vector<std::string> pertinent_negatives;  ///< things looked for and not present

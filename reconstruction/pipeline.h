@@ -122,7 +122,9 @@ std::vector<std::string> colourMapNames();
 /// One colour of a named map at t in [0, 1] (for colour bars).
 void colourAt(const std::string& map, double t, uint8_t rgb[3]);
 
-/// Writes an 8-bit PNG of a frame with mm axes, a title line and a colour bar.
-void writePng(const std::string& path, const core::Frame& tgc_applied, const core::Recipe& r, const std::string& title);
+/// Writes an 8-bit PNG of a frame with mm axes, a title line and a colour bar; `dark`: light
+/// text on a dark surround (screens) instead of black on white (print).
+void writePng(const std::string& path, const core::Frame& tgc_applied, const core::Recipe& r, const std::string& title,
+              bool dark = false);
 
 }  // namespace umbra::recon

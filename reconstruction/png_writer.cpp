@@ -72,7 +72,7 @@ UmbraPngWriteFn loadModule(std::string& why) {
 
 }  // namespace
 
-void writePng(const std::string& path, const core::Frame& f, const core::Recipe& r, const std::string& title) {
+void writePng(const std::string& path, const core::Frame& f, const core::Recipe& r, const std::string& title, bool dark) {
     const int nx = int(f.nx()), nz = int(f.nz());
     if (nx == 0 || nz == 0) throw core::SettingError("PNG: the frame is empty");
     const auto rgb = colourise(logCompress(f, r), r);
@@ -90,6 +90,7 @@ void writePng(const std::string& path, const core::Frame& f, const core::Recipe&
     plot.x1_mm = f.x_m.back() * 1e3;
     plot.z0_mm = f.z_m.front() * 1e3;
     plot.z1_mm = f.z_m.back() * 1e3;
+    plot.dark = dark ? 1 : 0;
     plot.dynamic_range_db = r.number("log_compression.dynamic_range_db");
     for (int k = 0; k < 256; ++k) {
         const double t = invert ? k / 255.0 : 1.0 - k / 255.0;  // row 0 is 0 dB

@@ -10,7 +10,7 @@ PACKAGES=(
   libopencv-dev libpng-dev libssl-dev
   libgtest-dev libgmock-dev googletest libbenchmark-dev
   python3 python3-numpy python3-scipy python3-h5py
-  xvfb xauth time
+  xvfb xauth time poppler-utils
 )
 missing=()
 for p in "${PACKAGES[@]}"; do

@@ -4,7 +4,7 @@
 # (1480 x 920). Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
-# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,dac}.png.
+# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,weld-export-light,report-page,dac}.png.
 # umbra writes each PNG under a temporary name and renames it; this script then checks that every
 # PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail
@@ -33,6 +33,15 @@ ref=()
 [ -f "$samples/reference_block.h5" ] && ref=(--demo-reference)
 run --demo "$samples" --frame 10 "${weld_set[@]}" "${ref[@]}" --demo-annotate \
     --screenshot "$out/weld.png" --export "$out/weld-export.png" --timings --timeout 240
+# The same view exported in the light (print) theme, and the PDF report of the case; its first
+# pages rendered with poppler's pdftoppm (report-page.png: the annotated image and the top view).
+run --demo "$samples" --frame 10 "${weld_set[@]}" "${ref[@]}" --demo-annotate \
+    --screenshot "$(mktemp -d)/weld.png" --export "$out/weld-export-light.png" --theme light \
+    --report "$out/../weld-report.pdf.tmp" --timeout 240
+if command -v pdftoppm >/dev/null; then
+  pdftoppm -r 80 -f 3 -l 3 -png -singlefile "$out/../weld-report.pdf.tmp" "$out/report-page"
+fi
+rm -f "$out/../weld-report.pdf.tmp"
 # The Phantom P-2 demo case (its own case: no weld case text), an ellipse on the 6 mm anechoic
 # cyst at (-8, 25) mm (position from samples/phantom_p2.json) and a finding from it.
 if [ -f "$samples/phantom_p2.h5" ]; then
@@ -44,7 +53,7 @@ fi
 if [ -f "$samples/reference_block.h5" ]; then
   run "$samples/reference_block.h5" --demo-reference --demo-tcg --screenshot "$out/dac.png" --timeout 240
 fi
-for f in "$out"/weld.png "$out"/weld-export.png "$out"/phantom.png "$out"/dac.png; do
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png; do
   [ -f "$f" ] || continue
   /usr/bin/python3 - "$f" <<'PY'
 import struct, sys, zlib

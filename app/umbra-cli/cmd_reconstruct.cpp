@@ -20,6 +20,7 @@ int cmdReconstruct(const Argv& argv) {
     const std::vector<OptionSpec> specs = {
         {"-o", "IMAGE.h5", "image file to write (required): linear envelope after time-gain compensation"},
         {"--png", "FILE", "also write an 8-bit PNG with mm axes and a colour bar; several frames: FILE_fNNN.png each"},
+        {"--theme", "light|dark", "PNG surround: light (print, the default) or dark (screens)"},
         {"--grid-mm", "XMIN:XMAX:ZMIN:ZMAX:STEP", "image region and pixel step in mm (0:0 = automatic region, step 0 = automatic)"},
         {"--frames", "all|N|A-B", "frames to reconstruct, 0-based (default all)"},
         {"--recipe", "FILE.json", "recipe to start from (as saved by the workstation or in the image file)"},
@@ -28,7 +29,7 @@ int cmdReconstruct(const Argv& argv) {
         {"--threads", "N", "worker threads (default: all cores)"},
         {"--timings", "", "print wall time per stage and the beamforming throughput"},
     };
-    const char* usage = "umbra-cli reconstruct CAPTURE -o IMAGE.h5 [--png FILE] [--grid-mm XMIN:XMAX:ZMIN:ZMAX:STEP] [--frames all|N]\n"
+    const char* usage = "umbra-cli reconstruct CAPTURE -o IMAGE.h5 [--png FILE] [--theme light|dark] [--grid-mm XMIN:XMAX:ZMIN:ZMAX:STEP] [--frames all|N]\n"
                         "       [--recipe FILE.json] [--set stage.param=value ...] [--threads N] [--timings]";
     try {
         Args a(argv, specs, 0, 1);
@@ -71,6 +72,10 @@ int cmdReconstruct(const Argv& argv) {
         job.capture = a.positional()[0];
         job.image = *out;
         job.png = a.value("--png");
+        if (auto t = a.value("--theme")) {
+            if (*t != "light" && *t != "dark") throw UsageError("--theme must be light or dark (got \"" + *t + "\")");
+            job.dark_png = *t == "dark";
+        }
         job.frames = a.value("--frames").value_or("all");
         TerminalBar bar;
         if (isatty(2))

@@ -17,6 +17,8 @@ const std::vector<Command>& commands() {
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
         {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
+        {"report", "write a PDF report of a case (findings, images, technique, provenance)", cmdReport},
+        {"export-findings", "write a case's findings and measurements as a CSV or JSON table", cmdExportFindings},
     };
     return table;
 }

@@ -35,6 +35,7 @@ struct JobOptions {
     std::string capture;             ///< capture file
     std::string image;               ///< image file to write (atomically)
     std::optional<std::string> png;  ///< PNG file (several frames: one per frame, see pngPathFor)
+    bool dark_png = false;           ///< PNG theme: dark surround (screens) instead of light (print)
     std::string frames = "all";      ///< as --frames
     int threads = 0;                 ///< worker threads, 0 = all cores
     /// Called while the job runs: fraction of the whole job in [0, 1], current frame position

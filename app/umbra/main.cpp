@@ -6,7 +6,8 @@
 //                                         reference block) or phantom (Phantom P-2); File → Demo cases
 //                                         offers the other
 //   umbra ... --timings [--set stage.param=value ...]   print display re-render and beamforming times
-//   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference [--demo-tcg]] [--capture N] [--export FILE]
+//   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference [--demo-tcg]] [--capture N] [--export FILE [--theme light|dark]]
+//             [--report FILE.pdf]
 #include <QApplication>
 #include <QCommandLineParser>
 #include <QFileInfo>
@@ -50,10 +51,12 @@ int main(int argc, char** argv) {
     QCommandLineOption demoTcg("demo-tcg", "With --demo-reference: also make the TCG of the reference block from the curve.");
     QCommandLineOption capture("capture", "Show capture N (0-based) of the case.", "N", "0");
     QCommandLineOption exportOpt("export", "With --screenshot: also export the annotated view to FILE (PNG).", "FILE");
+    QCommandLineOption themeOpt("theme", "With --export: light (print) or dark (screen) surround.", "light|dark", "dark");
+    QCommandLineOption reportOpt("report", "With --screenshot: also write the PDF report of the case to FILE.", "FILE");
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
+    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, themeOpt, reportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -154,6 +157,12 @@ int main(int argc, char** argv) {
         if (!ok) return 1;
         const QString out = cl.value(shot);
         const QString exp = cl.value(exportOpt);
+        const auto theme = umbra::ui::themeFromName(cl.value(themeOpt));
+        if (!theme) {
+            std::fprintf(stderr, "umbra: --theme must be light or dark\n");
+            return 2;
+        }
+        const QString report_path = cl.value(reportOpt);
         const bool ann = cl.isSet(annotate);
         std::vector<double> ell;
         for (const QString& v : cl.value(ellipse).split(',', Qt::SkipEmptyParts)) ell.push_back(v.toDouble());
@@ -168,7 +177,7 @@ int main(int argc, char** argv) {
         auto* phase = new int(ref_capture >= 0 ? 0 : 2);  // 0 go to the block, 1 take the reference, 2 shoot
         const bool timed = opt.timings;
         QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings,
-                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell, make_tcg] {
+                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell, make_tcg, theme, report_path] {
             *elapsed += 0.25;
             if (*phase == 0) {
                 ctl->setActiveCapture(static_cast<size_t>(ref_capture));
@@ -215,7 +224,7 @@ int main(int argc, char** argv) {
                             "Round echo-free region with a bright far wall; demonstration annotation placed at a stated position.";
                 ctl->editFindings(fs, "Describe finding");
             }
-            QTimer::singleShot(300, &w, [&w, out, exp] {
+            QTimer::singleShot(300, &w, [&w, out, exp, theme, report_path] {
                 // Written to a temporary name and renamed, so that an interrupted run or two
                 // runs at once never leave a half-written PNG under the final name.
                 const QString tmp = out + ".part";
@@ -225,7 +234,8 @@ int main(int argc, char** argv) {
                     saved = QFile::rename(tmp, out);
                 }
                 std::fprintf(stderr, "umbra: screenshot %s %s\n", out.toLocal8Bit().constData(), saved ? "written" : "FAILED");
-                if (!exp.isEmpty()) w.exportImage(exp, 2400);
+                if (!exp.isEmpty()) w.exportImage(exp, 2400, *theme);
+                if (!report_path.isEmpty() && !w.writeReport(report_path)) saved = false;
                 QApplication::exit(saved ? 0 : 3);
             });
         });

@@ -106,9 +106,9 @@ void draw(const UmbraPngPlot& p) {
     int tbase = 0;
     const int title_w = cv::getTextSize(title, cv::FONT_HERSHEY_SIMPLEX, 0.45, 1, &tbase).width + 16;
     const int canvas_w = std::max(W + left + right, title_w);
-    cv::Mat canvas(H + top + bottom, canvas_w, CV_8UC3, cv::Scalar(255, 255, 255));
+    cv::Mat canvas(H + top + bottom, canvas_w, CV_8UC3, p.dark ? cv::Scalar(28, 23, 21) : cv::Scalar(255, 255, 255));
     shown.copyTo(canvas(cv::Rect(left, top, W, H)));
-    const cv::Scalar ink(0, 0, 0);
+    const cv::Scalar ink = p.dark ? cv::Scalar(212, 204, 200) : cv::Scalar(0, 0, 0);
     const int font = cv::FONT_HERSHEY_SIMPLEX;
     const double fsz = 0.4;
     cv::putText(canvas, title, cv::Point(8, 18), font, 0.45, ink, 1, cv::LINE_AA);

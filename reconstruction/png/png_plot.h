@@ -10,7 +10,7 @@
 extern "C" {
 
 /// Bump when the layout of UmbraPngPlot changes; the module refuses other versions.
-#define UMBRA_PNG_PLOT_VERSION 1
+#define UMBRA_PNG_PLOT_VERSION 2
 
 struct UmbraPngPlot {
     int version;                 ///< UMBRA_PNG_PLOT_VERSION
@@ -20,6 +20,7 @@ struct UmbraPngPlot {
     int nx, nz;                  ///< image size, pixels
     double x0_mm, x1_mm;         ///< lateral axis of the first and last column
     double z0_mm, z1_mm;         ///< depth axis of the first and last row
+    int dark;                    ///< 1: light ink on a dark surround (screens); 0: black on white (print)
     double dynamic_range_db;     ///< colour bar spans 0 .. -dynamic_range_db
     uint8_t bar_rgb[256][3];     ///< colour bar, [0] = top (0 dB) .. [255] = bottom
 };

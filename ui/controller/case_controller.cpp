@@ -851,6 +851,15 @@ void CaseController::setSpeedUncertainty(const std::string& medium, std::optiona
     }));
 }
 
+void CaseController::setReportHeader(const core::ReportHeader& header) {
+    if (header == doc_.header) return;
+    undo_.push(new ValueCommand<core::ReportHeader>(tr("Edit report header"), doc_.header, header, [this](const core::ReportHeader& v) {
+        doc_.header = v;
+        markDirty();
+        emit caseChanged();
+    }));
+}
+
 std::pair<std::string, double> CaseController::speedUncertainty() const {
     if (const auto* s = sizingSetup()) return {s->medium, s->context.speed_rel};
     const std::string m = doc_.sizing_medium.empty() ? "other" : doc_.sizing_medium;
@@ -1304,10 +1313,10 @@ QString CaseController::techniqueText() const {
                  .arg(h.array.pitch_m() * 1e3, 0, 'f', 2)
                  .arg(h.array.centre_frequency_hz / 1e6, 0, 'f', 2)
                  .arg(h.array.fractional_bandwidth * 100, 0, 'f', 0);
-    lines << tr("Transmit: %1 × %2%3; sampling %4 MHz")
-                 .arg(QString::fromUtf8(core::toString(h.transmit.kind)))
+    lines << tr("Transmit: %1, %2 transmits%3; sampling %4 MHz")
+                 .arg(QString::fromUtf8(core::transmitLabel(h.transmit.kind)))
                  .arg(h.transmits())
-                 .arg(fmc ? tr(" (full matrix, total focusing)") : QString())
+                 .arg(fmc ? tr(" (total focusing)") : QString())
                  .arg(h.receive.sampling_frequency_hz / 1e6, 0, 'f', 1);
     {
         const auto [medium, rel] = speedUncertainty();
@@ -1332,15 +1341,15 @@ QString CaseController::techniqueText() const {
 QString CaseController::techniqueLine() const {
     if (!reader_) return {};
     const auto& h = reader_->header();
-    QString s = tr("%1 el. %2 MHz, %3 × %4, c = %5 m/s")
+    QString s = tr("%1 elements, %2 MHz, %3, %4 transmits, speed of sound %5 m/s")
                     .arg(h.array.elementCount())
                     .arg(h.array.centre_frequency_hz / 1e6, 0, 'f', 1)
-                    .arg(QString::fromUtf8(core::toString(h.transmit.kind)))
+                    .arg(QString::fromUtf8(core::transmitLabel(h.transmit.kind)))
                     .arg(h.transmits())
                     .arg(speedMps(), 0, 'f', 0);
     if (envelope_ && envelope_->nx() > 1)
-        s += tr(", grid %1 mm, fidelity %2 dB").arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3).arg(fidelity_db_, 0, 'f', 1);
-    s += tr(", DR %1 dB").arg(dynamicRangeDb(), 0, 'f', 0);
+        s += tr(", pixel %1 mm, amplitude fidelity %2 dB").arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3).arg(fidelity_db_, 0, 'f', 1);
+    s += tr(", dynamic range %1 dB").arg(dynamicRangeDb(), 0, 'f', 0);
     return s;
 }
 

@@ -61,7 +61,10 @@ public:
     bool isDirty() const;
     QUndoStack* undoStack() { return &undo_; }
     void setTitle(const QString& t);
-    void setCaseText(const core::CaseDocument& texts);  ///< title, background, negatives, prior (undoable? no: marks dirty)
+    void setCaseText(const core::CaseDocument& texts);
+    /// Report header fields (part, site, date, examiner, reviewer, procedure, criteria); undoable.
+    const core::ReportHeader& reportHeader() const { return doc_.header; }
+    void setReportHeader(const core::ReportHeader& header);  ///< title, background, negatives, prior (undoable? no: marks dirty)
 
     // ------------------------------------------------------------------ captures
     bool hasCapture() const { return reader_ != nullptr; }

@@ -14,7 +14,7 @@
 
 namespace umbra::ui {
 
-QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, int width_px) {
+QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, int width_px, Theme theme) {
     const Scene scene = view.scene();
     const ViewTransform& on_screen = view.transform();
     // Scale so that the visible image part plus margins is about width_px wide.
@@ -24,7 +24,7 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
     const double vis_px = std::max(1.0, vis0.width() * vt0.pixelsPerMm());
     const double k = std::max(0.25, static_cast<double>(width_px) / (vis_px + 58 + 84));
 
-    SceneStyle style;
+    SceneStyle style = themedStyle(theme);
     style.scale = k;
     style.scale_bar = true;
     QString head = ctl.displayName();
@@ -43,7 +43,9 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
         if (!here) continue;
         QString t = QStringLiteral("F%1: %2").arg(f.number).arg(QString::fromStdString(f.indication.location));
         if (f.indication.peak_db)
-            t += QStringLiteral(", peak %1 dB%2").arg(*f.indication.peak_db, 0, 'f', 1).arg(ctl.curve() ? QStringLiteral(" re DAC") : QString());
+            t += QStringLiteral(", peak %1 dB re %2")
+                     .arg(*f.indication.peak_db, 0, 'f', 1)
+                     .arg(ctl.curve() ? QStringLiteral("DAC") : QStringLiteral("frame peak (0 dB = the frame's strongest echo)"));
         fs << t;
     }
     if (!fs.isEmpty()) style.caption << QStringLiteral("Findings shown — ") + fs.join("; ");
@@ -58,6 +60,8 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
                                  .arg(QString::fromUtf8(core::basisName(c->basis)));
         if (!ctl.curveWarning().isEmpty()) style.caption << ctl.curveWarning();
     }
+    if (!ctl.curve() && ctl.hasCapture())
+        style.caption << QStringLiteral("Image amplitudes in dB re the frame peak (0 dB = the frame's strongest echo)");
     if (ctl.hasCapture() && ctl.header().isSynthetic()) style.caption << QStringLiteral("Synthetic demonstration data");
 
     // The part of the image visible on screen (empty margins around the image are left out).
@@ -66,8 +70,13 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
     if (!scene.extent_mm.isEmpty()) visible = visible.intersected(scene.extent_mm);
     if (visible.isEmpty()) visible = QRectF(on_screen.toMm(screen_area.topLeft()), on_screen.toMm(screen_area.bottomRight()));
     const double ppm = on_screen.pixelsPerMm() * k;  // export pixels per mm
-    const QMarginsF m = sceneMargins(style, static_cast<int>(style.caption.size()));
     const QSizeF area(visible.width() * ppm, visible.height() * ppm);
+    // Caption lines wrap at the picture's right edge instead of being cut off.
+    {
+        const QMarginsF m0 = sceneMargins(style, 0);
+        style.caption = wrapCaption(style.caption, style, area.width() + m0.right() - 8 * k);
+    }
+    const QMarginsF m = sceneMargins(style, static_cast<int>(style.caption.size()));
     const QSize whole(static_cast<int>(area.width() + m.left() + m.right()),
                       static_cast<int>(area.height() + m.top() + m.bottom()));
     QImage out(whole, QImage::Format_RGB32);
@@ -83,8 +92,8 @@ QImage renderAnnotatedImage(const ImageView& view, const CaseController& ctl, in
     return out;
 }
 
-void exportAnnotatedPng(const QString& path, const ImageView& view, const CaseController& ctl, int width_px) {
-    const QImage img = renderAnnotatedImage(view, ctl, width_px);
+void exportAnnotatedPng(const QString& path, const ImageView& view, const CaseController& ctl, int width_px, Theme theme) {
+    const QImage img = renderAnnotatedImage(view, ctl, width_px, theme);
     // Written under a temporary name and renamed: never a half-written PNG under `path`.
     const QString tmp = path + ".part";
     if (!img.save(tmp, "PNG")) {

@@ -16,6 +16,8 @@
 #include <QFile>
 #include <QFileDialog>
 #include <QFileInfo>
+#include <QFormLayout>
+#include <QLineEdit>
 #include <QHBoxLayout>
 #include <QInputDialog>
 #include <QLabel>
@@ -26,6 +28,7 @@
 #include <QProgressBar>
 #include <QSettings>
 #include <QSlider>
+#include <QSpinBox>
 #include <QStatusBar>
 #include <QTextStream>
 #include <QTimer>
@@ -44,6 +47,7 @@
 #include "ui/controller/case_controller.h"
 #include "ui/dac/curve_panel.h"
 #include "ui/export/image_export.h"
+#include "ui/report/report.h"
 #include "ui/findings/findings_pane.h"
 #include "ui/main/findings_dock.h"
 #include "ui/recipe/recipe_panel.h"
@@ -237,6 +241,8 @@ void MainWindow::buildActions() {
     file->addSeparator();
     a = file->addAction(tr("&Export image…"), this, &MainWindow::exportDialog);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_E));
+    file->addAction(tr("Report &header…"), this, &MainWindow::reportHeaderDialog);
+    file->addAction(tr("&Report…"), this, &MainWindow::reportDialog);
     file->addSeparator();
     a = file->addAction(tr("&Quit"), this, &QWidget::close);
     a->setShortcut(QKeySequence::Quit);
@@ -653,9 +659,9 @@ void MainWindow::autosaveNow() {
     }
 }
 
-bool MainWindow::exportImage(const QString& path, int width_px) {
+bool MainWindow::exportImage(const QString& path, int width_px, Theme theme) {
     try {
-        exportAnnotatedPng(path, *view_, *ctl_, width_px);
+        exportAnnotatedPng(path, *view_, *ctl_, width_px, theme);
     } catch (const std::exception& e) {
         showError(tr("Cannot export"), QString::fromStdString(e.what()));
         return false;
@@ -666,13 +672,96 @@ bool MainWindow::exportImage(const QString& path, int width_px) {
 
 void MainWindow::exportDialog() {
     if (!ctl_->hasImage()) return;
-    bool ok = false;
-    const int w = QInputDialog::getInt(this, tr("Export image"), tr("Width of the PNG, pixels:"), 2400, 400, 12000, 100, &ok);
-    if (!ok) return;
+    QDialog d(this);
+    d.setWindowTitle(tr("Export image"));
+    auto* form = new QFormLayout(&d);
+    auto* width = new QSpinBox(&d);
+    width->setRange(400, 12000);
+    width->setSingleStep(100);
+    width->setValue(2400);
+    width->setSuffix(tr(" px"));
+    form->addRow(tr("Width of the PNG:"), width);
+    auto* theme = new QComboBox(&d);
+    theme->addItem(tr("Dark (screen)"), QStringLiteral("dark"));
+    theme->addItem(tr("Light (print, reports)"), QStringLiteral("light"));
+    theme->setCurrentIndex(export_theme_ == Theme::Light ? 1 : 0);
+    form->addRow(tr("Theme:"), theme);
+    auto* buttons = new QDialogButtonBox(QDialogButtonBox::Ok | QDialogButtonBox::Cancel, &d);
+    connect(buttons, &QDialogButtonBox::accepted, &d, &QDialog::accept);
+    connect(buttons, &QDialogButtonBox::rejected, &d, &QDialog::reject);
+    form->addRow(buttons);
+    if (d.exec() != QDialog::Accepted) return;
+    const int w = width->value();
+    export_theme_ = themeFromName(theme->currentData().toString()).value_or(Theme::Dark);
     QString p = QFileDialog::getSaveFileName(this, tr("Export image"), inCaseFolder(ctl_->displayName() + ".png"), tr("PNG images (*.png)"));
     if (p.isEmpty()) return;
     if (!p.endsWith(".png", Qt::CaseInsensitive)) p += ".png";
-    exportImage(p, w);
+    exportImage(p, w, export_theme_);
+}
+
+bool MainWindow::writeReport(const QString& path) {
+    ctl_->setViewState(view_->viewState());
+    report::ReportSettings settings;
+    settings.software = QStringLiteral("Umbra %1 (workstation)").arg(QCoreApplication::applicationVersion());
+    settings.progress = [this](const QString& what) {
+        statusBar()->showMessage(tr("Report: %1…").arg(what));
+        QCoreApplication::processEvents(QEventLoop::ExcludeUserInputEvents);
+    };
+    QApplication::setOverrideCursor(Qt::WaitCursor);
+    try {
+        const report::Report r(ctl_->document(), ctl_->casePath(), settings);
+        r.writePdf(path);
+    } catch (const std::exception& e) {
+        QApplication::restoreOverrideCursor();
+        showError(tr("Cannot write the report"), QString::fromStdString(e.what()));
+        return false;
+    }
+    QApplication::restoreOverrideCursor();
+    statusBar()->showMessage(tr("Report written to %1").arg(path), 8000);
+    return true;
+}
+
+void MainWindow::reportDialog() {
+    if (opt_.interactive && (ctl_->reportHeader().examiner.empty() || ctl_->reportHeader().part.empty())) {
+        const auto b = QMessageBox::question(this, tr("Report"),
+                                             tr("The report header has blank fields (part, examiner …); the report will leave "
+                                                "lines to fill in by hand. Fill them in first?"),
+                                             QMessageBox::Yes | QMessageBox::No, QMessageBox::Yes);
+        if (b == QMessageBox::Yes) reportHeaderDialog();
+    }
+    QString p = QFileDialog::getSaveFileName(this, tr("Report"), inCaseFolder(ctl_->displayName() + ".pdf"), tr("PDF (*.pdf)"));
+    if (p.isEmpty()) return;
+    if (!p.endsWith(".pdf", Qt::CaseInsensitive)) p += ".pdf";
+    writeReport(p);
+}
+
+void MainWindow::reportHeaderDialog() {
+    QDialog d(this);
+    d.setWindowTitle(tr("Report header"));
+    auto* form = new QFormLayout(&d);
+    auto* note = new QLabel(tr("What the report prints at its top. Blank fields are printed as lines to fill in by hand."), &d);
+    note->setWordWrap(true);
+    form->addRow(note);
+    core::ReportHeader h = ctl_->reportHeader();
+    const std::vector<std::pair<QString, std::string*>> fields = {
+        {tr("Part:"), &h.part},         {tr("Site:"), &h.site},           {tr("Date of examination:"), &h.date},
+        {tr("Examiner:"), &h.examiner}, {tr("Reviewer:"), &h.reviewer},   {tr("Procedure:"), &h.procedure},
+        {tr("Acceptance criteria:"), &h.criteria}};
+    std::vector<QLineEdit*> edits;
+    for (const auto& [label, value] : fields) {
+        auto* e = new QLineEdit(QString::fromStdString(*value), &d);
+        e->setMinimumWidth(360);
+        form->addRow(label, e);
+        edits.push_back(e);
+    }
+    edits[2]->setPlaceholderText(tr("e.g. %1").arg(QDate::currentDate().toString(Qt::ISODate)));
+    auto* buttons = new QDialogButtonBox(QDialogButtonBox::Ok | QDialogButtonBox::Cancel, &d);
+    connect(buttons, &QDialogButtonBox::accepted, &d, &QDialog::accept);
+    connect(buttons, &QDialogButtonBox::rejected, &d, &QDialog::reject);
+    form->addRow(buttons);
+    if (d.exec() != QDialog::Accepted) return;
+    for (size_t i = 0; i < fields.size(); ++i) *fields[i].second = edits[i]->text().trimmed().toStdString();
+    ctl_->setReportHeader(h);
 }
 
 void MainWindow::loadRecipe() {

@@ -10,6 +10,8 @@
 #include <functional>
 #include <vector>
 
+#include "ui/viewer/scene_painter.h"
+
 class QAction;
 class QActionGroup;
 class QComboBox;
@@ -71,7 +73,12 @@ public:
     bool demoCurve(const std::vector<double>& depths_mm = {5, 10, 15, 20});
     void demoAnnotate();
     /// Writes the annotated PNG of the current view.
-    bool exportImage(const QString& path, int width_px);
+    bool exportImage(const QString& path, int width_px, Theme theme = Theme::Dark);
+    /// Writes the PDF report of the case as it is now (ui/report). False (and a message) on error.
+    bool writeReport(const QString& path);
+    /// Asks for the report header fields (part, site, date, examiner, reviewer, procedure,
+    /// criteria) and sets them as one undoable edit.
+    void reportHeaderDialog();
     /// Asks the user for a replacement of a missing/changed capture (interactive only).
     void offerRelocation();
     /// Writes the autosave file now (what the timer does).
@@ -98,6 +105,7 @@ private:
     bool save();
     bool saveAs();
     void exportDialog();
+    void reportDialog();
     void relocate();
     void loadRecipe();
     void saveRecipe();
@@ -143,6 +151,7 @@ private:
     QToolButton* cancel_ = nullptr;
     QTimer* autosave_ = nullptr;
     bool updating_controls_ = false;
+    Theme export_theme_ = Theme::Dark;  ///< last theme chosen in the export dialog
 };
 
 }  // namespace umbra::ui

@@ -30,6 +30,61 @@ QRectF imageArea(const QRectF& whole, const SceneStyle& style) {
     return whole.marginsRemoved(sceneMargins(style, static_cast<int>(style.caption.size())));
 }
 
+SceneStyle themedStyle(Theme theme) {
+    SceneStyle s;
+    if (theme == Theme::Light) {
+        s.background = Qt::white;
+        s.axis = QColor(30, 32, 38);
+        s.label_fill = QColor(255, 255, 255, 225);
+        s.label_text_dark = true;
+    }
+    return s;
+}
+
+std::optional<Theme> themeFromName(const QString& name) {
+    const QString n = name.trimmed().toLower();
+    if (n == QLatin1String("light")) return Theme::Light;
+    if (n == QLatin1String("dark")) return Theme::Dark;
+    return std::nullopt;
+}
+
+namespace {
+QFont captionFont(const SceneStyle& s) {
+    QFont f;
+    f.setPointSizeF(8.5 * s.scale);
+    return f;
+}
+}  // namespace
+
+QStringList wrapCaption(const QStringList& lines, const SceneStyle& style, double width_px) {
+    const QFontMetricsF fm(captionFont(style));
+    QStringList out;
+    for (const QString& line : lines) {
+        if (width_px <= 0 || fm.horizontalAdvance(line) <= width_px) {
+            out << line;
+            continue;
+        }
+        QString cur;
+        for (const QString& word : line.split(QLatin1Char(' '))) {
+            const QString trial = cur.isEmpty() ? word : cur + QLatin1Char(' ') + word;
+            if (fm.horizontalAdvance(trial) <= width_px) {
+                cur = trial;
+                continue;
+            }
+            if (!cur.isEmpty()) out << cur;
+            cur = word;
+            while (cur.size() > 1 && fm.horizontalAdvance(cur) > width_px) {  // one word wider than the line
+                int n = cur.size() - 1;
+                while (n > 1 && fm.horizontalAdvance(cur.left(n)) > width_px) --n;
+                out << cur.left(n);
+                cur = cur.mid(n);
+            }
+        }
+        if (!cur.isEmpty()) out << cur;
+    }
+    return out;
+}
+
 QColor measurementColour(core::MeasurementKind kind) {
     switch (kind) {
         case core::MeasurementKind::Caliper: return QColor(120, 220, 255);
@@ -62,37 +117,39 @@ QString measurementLabel(const core::Measurement& m, const core::UncertaintyMode
         }
     }
     QStringList parts;
-    auto pick = [&](const char* n) {
+    // Each number is named ("length", "height", ...), so a reader of a printed image knows which is which.
+    auto pick = [&](const char* n, const char* shown) {
         for (const auto& x : q)
-            if (x.name == n) parts << QString::fromStdString(core::formatQuantity(x));
+            if (x.name == n) parts << QString::fromUtf8(shown) + QLatin1Char(' ') + QString::fromStdString(core::formatQuantity(x));
     };
     switch (m.kind) {
-        case core::MeasurementKind::Caliper: pick("distance"); break;
-        case core::MeasurementKind::DepthMarker: pick("depth"); break;
-        case core::MeasurementKind::ExtentBox: pick("length"); pick("height"); break;
-        case core::MeasurementKind::Ellipse: pick("axis 1"); pick("axis 2"); break;
+        case core::MeasurementKind::Caliper: pick("distance", "distance"); break;
+        case core::MeasurementKind::DepthMarker: pick("depth", "depth"); break;
+        case core::MeasurementKind::ExtentBox: pick("length", "length"); pick("height", "height"); break;
+        case core::MeasurementKind::Ellipse: pick("axis 1", "axis 1"); pick("axis 2", "axis 2"); break;
         case core::MeasurementKind::DropSizing:
-            pick("length −6 dB");
-            pick("height −6 dB");
-            if (parts.size() == 2) parts[1] += QStringLiteral(" (−6 dB)");
+            pick("length −6 dB", "length");
+            pick("height −6 dB", "height");
+            if (!parts.isEmpty()) parts.back() += QStringLiteral(" (−6 dB)");
             break;
         case core::MeasurementKind::Drop20Sizing:
-            pick("length −20 dB");
-            pick("height −20 dB");
-            if (parts.size() == 2) parts[1] += QStringLiteral(" (−20 dB)");
+            pick("length −20 dB", "length");
+            pick("height −20 dB", "height");
+            if (!parts.isEmpty()) parts.back() += QStringLiteral(" (−20 dB)");
             break;
         case core::MeasurementKind::TipSizing:
-            pick("height (tip to tip)");
-            if (!parts.isEmpty()) parts[0] = QStringLiteral("tips ") + parts[0];
+            pick("height (tip to tip)", "height tip to tip");
             break;
     }
-    if (parts.isEmpty() && !q.empty()) parts << QString::fromStdString(core::formatQuantity(q.back()));
-    return name + "  " + parts.join(" × ");
+    if (parts.isEmpty() && !q.empty())
+        parts << QString::fromStdString(q.back().name) + QLatin1Char(' ') + QString::fromStdString(core::formatQuantity(q.back()));
+    return name + "  " + parts.join(", ");
 }
 
 namespace {
 
-void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor& colour, double k, const QRectF& inside) {
+void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor& colour, double k, const QRectF& inside,
+               const QColor& fill) {
     QFont f = p.font();
     f.setPointSizeF(8.5 * k);
     p.setFont(f);
@@ -105,13 +162,14 @@ void drawLabel(QPainter& p, const QPointF& at, const QString& text, const QColor
     if (r.top() < inside.top() + 2 * k) r.moveTop(at.y() + 6 * k);
     if (r.bottom() > inside.bottom() - 2 * k) r.moveBottom(inside.bottom() - 2 * k);
     p.setPen(Qt::NoPen);
-    p.setBrush(QColor(10, 12, 16, 200));
+    p.setBrush(fill);
     p.drawRoundedRect(r, 3 * k, 3 * k);
     p.setPen(colour);
     p.drawText(r, Qt::AlignCenter, text);
 }
 
-void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measurement& m, const Scene& sc, double k) {
+void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measurement& m, const Scene& sc, const SceneStyle& st) {
+    const double k = st.scale;
     const QColor col = measurementColour(m.kind);
     const bool sel = QString::fromStdString(m.id) == sc.selected;
     QPen pen(col, (sel ? 2.2 : 1.5) * k);
@@ -255,7 +313,8 @@ void drawMeasurement(QPainter& p, const ViewTransform& vt, const core::Measureme
         if (sz->second.resolution_limited) text += QStringLiteral("  [resolution-limited]");
         if (sz->second.offer_tips) text += QStringLiteral("  [%1 peaks: try tip sizing (T)]").arg(sz->second.peaks.size());
     }
-    drawLabel(p, label_at, text, sel ? Qt::white : col, k, vt.viewport());
+    const QColor text_colour = st.label_text_dark ? (sel ? QColor(0, 0, 0) : col.darker(260)) : (sel ? QColor(Qt::white) : col);
+    drawLabel(p, label_at, text, text_colour, k, vt.viewport(), st.label_fill);
 }
 
 void drawColourBar(QPainter& p, const QRectF& bar, const Scene& sc, const SceneStyle& st) {
@@ -319,10 +378,10 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
     const QRectF img = vt.imageRectPx();
     p.save();
     p.setClipRect(area);
-    p.fillRect(area, QColor(8, 9, 12));
+    p.fillRect(area, st.label_text_dark ? QColor(236, 236, 236) : QColor(8, 9, 12));
     p.setRenderHint(QPainter::SmoothPixmapTransform, vt.pixelsPerMm() * sc.extent_mm.width() / sc.image->width() < 6);
     p.drawImage(img, *sc.image);
-    for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, k);
+    for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, st);
     p.restore();
 
     // Axes: x along the top (the array is there), depth down the left side.
@@ -369,9 +428,7 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
     }
     if (!st.caption.isEmpty()) {
         p.setPen(st.axis);
-        QFont f = base;
-        f.setPointSizeF(8.5 * k);
-        p.setFont(f);
+        p.setFont(captionFont(st));
         double y = area.bottom() + 6 * k;
         for (const auto& line : st.caption) {
             p.drawText(QRectF(area.left(), y, whole.width() - area.left(), 16 * k), Qt::AlignLeft | Qt::AlignVCenter, line);

@@ -37,6 +37,9 @@ struct Scene {
     std::map<std::string, core::SizingResult> sizings;  ///< image sizing results (drop edges, tips) by measurement id
 };
 
+/// Colours around the image: dark (screen) or light (print: white paper, dark text).
+enum class Theme { Dark, Light };
+
 /// Layout and look of one rendering.
 struct SceneStyle {
     double scale = 1.0;          ///< multiplies fonts, line widths and margins (exports)
@@ -44,8 +47,19 @@ struct SceneStyle {
     bool scale_bar = false;
     QColor background{21, 23, 28};
     QColor axis{200, 204, 212};
-    QStringList caption;         ///< lines under the image (exports)
+    QColor label_fill{10, 12, 16, 200};  ///< box behind measurement labels
+    bool label_text_dark = false;         ///< labels in darkened measurement colours (light theme)
+    QStringList caption;         ///< lines under the image (exports); see wrapCaption
 };
+
+/// A style with the theme's colours (everything else at its default).
+SceneStyle themedStyle(Theme theme);
+/// "light" / "dark" (case-insensitive) -> theme; nullopt for anything else.
+std::optional<Theme> themeFromName(const QString& name);
+
+/// The caption lines word-wrapped to `width_px` at the style's caption font (a line longer than
+/// the width is broken between words, or inside a word when one word alone is too long).
+QStringList wrapCaption(const QStringList& lines, const SceneStyle& style, double width_px);
 
 /// Margins (pixels) around the image area for axes and the colour bar.
 QMarginsF sceneMargins(const SceneStyle& style, int caption_lines = 0);
@@ -57,7 +71,8 @@ QRectF imageArea(const QRectF& whole, const SceneStyle& style);
 void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& view, const Scene& scene,
                 const SceneStyle& style);
 
-/// Short text for a measurement's label on the image: "M1  12.34 ± 0.12 mm".
+/// Label of a measurement on the image, naming each number: "M1  distance 12.34 ± 0.12 mm",
+/// "M2  length 3.2 ± 0.4 mm, height 1.6 ± 0.4 mm" (extent box), "M3  length … (−6 dB)".
 /// `q`: the measurement's quantities when known (−6 dB sizing), else core::evaluate is used.
 QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u,
                          const std::vector<core::Quantity>* q = nullptr);
