@@ -17,6 +17,8 @@ const std::vector<Command>& commands() {
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
         {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
+        {"blind-copy", "copy a case for a blind second reading (captures and recipes only)", cmdBlindCopy},
+        {"agreement", "inter-reader agreement of two or more cases on the same captures (kappa, Bland-Altman)", cmdAgreement},
     };
     return table;
 }
