@@ -170,6 +170,11 @@ BlandAltmanResult blandAltman(const std::vector<double>& a, const std::vector<do
     }
     r.loa_low = r.bias - z * r.sd;
     r.loa_high = r.bias + z * r.sd;
+    if (r.n >= 2) {
+        const double n = static_cast<double>(r.n);
+        r.bias_ci_half = kZ95 * r.sd / std::sqrt(n);
+        r.loa_ci_half = kZ95 * std::sqrt(3.0 * r.sd * r.sd / n);
+    }
     return r;
 }
 
@@ -388,6 +393,17 @@ ReportTable confusionTable(const std::string& caption, const ConfusionMatrix& m,
 
 }  // namespace
 
+std::string formatBlandAltman(const BlandAltmanResult& r, const std::string& unit) {
+    if (r.n == 0) return "no pairs";
+    auto pm = [&](double v, double h) {
+        if (!(h > 0)) return num(v, std::max(1e-3, std::abs(v) * 1e-3)) + " " + unit;
+        const auto rr = roundToUncertainty(v, h);
+        return rr.value_text + " ± " + rr.uncertainty_text + " " + unit;
+    };
+    return "bias " + pm(r.bias, r.bias_ci_half) + ", 95 % limits of agreement " + pm(r.loa_low, r.loa_ci_half) + " to " +
+           pm(r.loa_high, r.loa_ci_half) + " (n = " + std::to_string(r.n) + ")";
+}
+
 std::string formatKappa(const CohenKappaResult& k) {
     if (!std::isfinite(k.kappa)) return "not defined (all ratings in one category, or none)";
     const double half = (k.ci_high - k.ci_low) / 2;
@@ -424,12 +440,9 @@ ReportSection agreementReportSection(const AgreementResult& r) {
                                               (r.readers.size() > 2 ? " (summed over reader pairs)" : ""),
                                           k.confusion, a, b));
     }
-    for (const auto& sz : r.sizes) {
-        const double u = sz.ba.n >= 2 ? sz.ba.sd / std::sqrt(static_cast<double>(sz.ba.n)) : 0.05;
-        s.paragraphs.push_back("Size (" + sz.quantity + ", later reader − reader 1, " + std::to_string(sz.ba.n) +
-                               " pairs): bias " + num(sz.ba.bias, u) + " mm, 95 % limits of agreement " +
-                               num(sz.ba.loa_low, u) + " to " + num(sz.ba.loa_high, u) + " mm (Bland & Altman 1986).");
-    }
+    for (const auto& sz : r.sizes)
+        s.paragraphs.push_back("Size (" + sz.quantity + ", later reader − reader 1): " + formatBlandAltman(sz.ba, "mm") +
+                               " (Bland & Altman 1986).");
     ReportTable un;
     un.caption = "Indications found by some readers only";
     un.header = {"readers", "findings", "capture frame", "x (mm)", "depth (mm)"};

@@ -68,6 +68,9 @@ struct BlandAltmanResult {
     double loa_low = 0, loa_high = 0;  ///< bias ∓ z·sd
     double factor = kZ95;   ///< z used for the limits
     std::vector<double> means, differences;  ///< per pair: (a + b)/2 and a − b
+    /// Half-widths of the 95 % intervals (normal approximation, Bland & Altman 1986): of the
+    /// bias 1.96·s/√n, of each limit 1.96·√(3s²/n). 0 for fewer than two pairs.
+    double bias_ci_half = 0, loa_ci_half = 0;
 };
 /// Bland–Altman analysis of paired values (same unit). SettingError when sizes differ or a value
 /// is not finite; fewer than two pairs give sd = 0 and limits equal to the bias.
@@ -144,6 +147,10 @@ ReportSection agreementReportSection(const AgreementResult& r);
 /// JSON text of the result (see docs/agreement.md): readers, matched, unmatched, interpretation,
 /// evaluation, sizes, groups.
 std::string agreementToJson(const AgreementResult& r);
+
+/// "bias −0.12 ± 0.10 mm, 95 % limits of agreement −0.9 ± 0.2 to 0.7 ± 0.2 mm (n = 12)": each
+/// number with its 95 % interval half-width, rounded to it (GUM 7.2.6).
+std::string formatBlandAltman(const BlandAltmanResult& r, const std::string& unit);
 
 /// Kappa with its interval as text: "0.68 (95 % CI 0.52 to 0.83)"; "not defined (…)" for NaN.
 std::string formatKappa(const CohenKappaResult& k);

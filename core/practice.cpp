@@ -165,8 +165,12 @@ std::vector<std::string> PracticeSet::tasks() const {
 }
 
 std::vector<PracticeReading> practiceReadings(const Measurement& m, const UncertaintyModel& u) {
+    return practiceReadings(m, evaluate(m, u));
+}
+
+std::vector<PracticeReading> practiceReadings(const Measurement& m, const std::vector<Quantity>& q) {
     std::vector<PracticeReading> out;
-    const std::vector<Quantity> q = evaluate(m, u);
+    if (m.points.size() != pointCount(m.kind)) return out;
     auto find = [&](const std::string& name) -> const Quantity* {
         for (const auto& x : q)
             if (x.name == name) return &x;

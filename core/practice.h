@@ -72,6 +72,9 @@ struct PracticeReading {
 /// height (90°); ellipse → both axes along their directions; depth marker → depth. Image-sizing
 /// boxes give their box length and height. Uses evaluate() for values and uncertainties.
 std::vector<PracticeReading> practiceReadings(const Measurement& m, const UncertaintyModel& u);
+/// The same from quantities already computed for `m` (e.g. the workstation's, which sizes the
+/// image-sizing boxes from the image: their "length" and "height" are then the sized extents).
+std::vector<PracticeReading> practiceReadings(const Measurement& m, const std::vector<Quantity>& quantities);
 
 /// A reading scored against the truth.
 struct PracticeResult {

@@ -25,6 +25,7 @@
 #include <QPlainTextEdit>
 #include <QProgressBar>
 #include <QSettings>
+#include <QStandardPaths>
 #include <QSlider>
 #include <QStatusBar>
 #include <QTextStream>
@@ -39,8 +40,12 @@
 #include <fstream>
 #include <sstream>
 
+#include "core/blind_copy.h"
 #include "core/case_file.h"
 #include "core/error.h"
+#include "core/practice.h"
+#include "ui/agreement/agreement_dialog.h"
+#include "ui/practice/practice_panel.h"
 #include "ui/controller/case_controller.h"
 #include "ui/dac/curve_panel.h"
 #include "ui/export/image_export.h"
@@ -231,6 +236,12 @@ void MainWindow::buildActions() {
     a = file->addAction(tr("Save case &as…"), this, &MainWindow::saveAs);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S));
     file->addAction(tr("&Relocate capture…"), this, &MainWindow::relocate);
+    a = file->addAction(tr("Make &blind copy…"), this, [this] {
+        const QString p = QFileDialog::getSaveFileName(this, tr("Blind copy for a second reader"), inCaseFolder("blind.umbracase"),
+                                                       tr("Umbra cases (*.umbracase)"));
+        if (!p.isEmpty()) makeBlindCopy(p);
+    });
+    a->setToolTip(tr("A new case with the same captures and recipes, without measurements, findings, texts or amplitude reference"));
     file->addSeparator();
     file->addAction(tr("Load recipe…"), this, &MainWindow::loadRecipe);
     file->addAction(tr("Save recipe…"), this, &MainWindow::saveRecipe);
@@ -350,6 +361,29 @@ void MainWindow::buildActions() {
     a->setToolTip(tr("TCG gain that raises each depth by the curve's fall from its shallowest point: equal holes display equal"));
     a = tools->addAction(tr("Clear distance–amplitude curve"), this, [this] {
         ctl_->editCurve(std::nullopt, tr("Clear the distance–amplitude curve"));
+    });
+
+    tools->addSeparator();
+    a = tools->addAction(tr("Inter-reader &agreement…"), this, [this] {
+        auto* dlg = new AgreementDialog(this);
+        dlg->setAttribute(Qt::WA_DeleteOnClose);
+        dlg->show();
+    });
+    a->setToolTip(tr("Compare the findings of cases read independently on the same captures (kappa, Bland–Altman)"));
+
+    QMenu* practice = menuBar()->addMenu(tr("&Practice"));
+    practice->addAction(tr("Start practice set…"), this, [this] {
+        const QString cap = QFileDialog::getOpenFileName(this, tr("Practice set capture (an answer file X.answers.json lies beside X.h5)"),
+                                                         demo_dir_.isEmpty() ? caseFolder() : demo_dir_, tr("Captures (*.h5)"));
+        if (cap.isEmpty()) return;
+        bool ok = false;
+        const QString who = QInputDialog::getText(this, tr("Trainee"), tr("Your name (your practice log is kept under it on this computer):"),
+                                                  QLineEdit::Normal, practice_ ? practice_->trainee() : QString(), &ok);
+        if (ok) startPractice(cap, who.trimmed());
+    });
+    practice->addAction(tr("Practice progress…"), this, [this] {
+        if (practice_ && practice_->active()) practice_->showProgress(true);
+        else showError(tr("Practice progress"), tr("Start a practice set first: the progress view shows that trainee's log."));
     });
 
     QMenu* view = menuBar()->addMenu(tr("&View"));
@@ -529,6 +563,61 @@ void MainWindow::open() {
     const QString p = QFileDialog::getOpenFileName(this, tr("Open capture or case"), caseFolder(),
                                                    tr("Captures and cases (*.h5 *.hdf5 *.umbracase);;All files (*)"));
     if (!p.isEmpty()) openPath(p);
+}
+
+QString MainWindow::practiceFolder() {
+    return QDir(QStandardPaths::writableLocation(QStandardPaths::AppLocalDataLocation)).filePath(QStringLiteral("practice"));
+}
+
+bool MainWindow::startPractice(const QString& capture_path, const QString& trainee, const QString& log_folder) {
+    const std::string answers = core::PracticeSet::answersPathFor(capture_path.toStdString());
+    if (answers.empty()) {
+        showError(tr("Practice"), tr("%1 is not a practice set: there is no answer file %2 beside it.")
+                                      .arg(capture_path, QFileInfo(capture_path).completeBaseName() + ".answers.json"));
+        return false;
+    }
+    if (trainee.trimmed().isEmpty()) {
+        showError(tr("Practice"), tr("Type the trainee's name: the practice log is kept under it."));
+        return false;
+    }
+    try {
+        const core::PracticeSet set = core::PracticeSet::load(answers);
+        if (!openPath(capture_path)) return false;
+        if (!practice_) {
+            practice_ = new PracticePanel(ctl_);
+            practice_dock_ = new QDockWidget(tr("Practice"), this);
+            practice_dock_->setObjectName("PracticeDock");
+            practice_dock_->setWidget(practice_);
+            addDockWidget(Qt::RightDockWidgetArea, practice_dock_);
+            connect(practice_, &PracticePanel::lockedChanged, this, [this](bool locked) {
+                if (locked) setTool(Tool::Select);
+                tools_->setEnabled(!locked);
+            });
+        }
+        const QString title = QString::fromStdString(set.scenario().empty() ? QFileInfo(capture_path).completeBaseName().toStdString()
+                                                                             : set.scenario())
+                                  .replace('_', ' ') + tr(" (synthetic)");
+        practice_->start(set, trainee.trimmed(), log_folder.isEmpty() ? practiceFolder() : log_folder, title);
+        tools_->setEnabled(true);
+        practice_dock_->show();
+        practice_dock_->raise();
+    } catch (const std::exception& e) {
+        showError(tr("Practice"), QString::fromStdString(e.what()));
+        return false;
+    }
+    return true;
+}
+
+bool MainWindow::makeBlindCopy(const QString& path) {
+    try {
+        const core::CaseDocument blind = core::blindCopy(ctl_->document());
+        core::saveCase(path.toStdString(), blind, /*absolute_fallback=*/false);
+        statusBar()->showMessage(tr("Blind copy written to %1 (captures and recipes only)").arg(path), 10000);
+    } catch (const std::exception& e) {
+        showError(tr("Cannot write the blind copy"), QString::fromStdString(e.what()));
+        return false;
+    }
+    return true;
 }
 
 bool MainWindow::openPath(const QString& path) {
