@@ -589,18 +589,29 @@ bool MainWindow::startPractice(const QString& capture_path, const QString& train
             practice_dock_->setObjectName("PracticeDock");
             practice_dock_->setWidget(practice_);
             addDockWidget(Qt::RightDockWidgetArea, practice_dock_);
+            // Practice takes the findings' place (a tab beside them): the results need the room.
+            if (auto* fd = findChild<QDockWidget*>(QStringLiteral("FindingsDock"))) tabifyDockWidget(fd, practice_dock_);
             connect(practice_, &PracticePanel::lockedChanged, this, [this](bool locked) {
                 if (locked) setTool(Tool::Select);
                 tools_->setEnabled(!locked);
             });
         }
-        const QString title = QString::fromStdString(set.scenario().empty() ? QFileInfo(capture_path).completeBaseName().toStdString()
-                                                                             : set.scenario())
-                                  .replace('_', ' ') + tr(" (synthetic)");
+        // "practice_set_c" → "Practice set C"
+        QStringList words = QString::fromStdString(set.scenario().empty() ? QFileInfo(capture_path).completeBaseName().toStdString()
+                                                                          : set.scenario())
+                                .split('_', Qt::SkipEmptyParts);
+        for (QString& word : words)
+            if (word.size() == 1) word = word.toUpper();
+        if (!words.isEmpty()) words[0][0] = words[0][0].toUpper();
+        const QString title = words.join(' ') + tr(" (synthetic)");
         practice_->start(set, trainee.trimmed(), log_folder.isEmpty() ? practiceFolder() : log_folder, title);
         tools_->setEnabled(true);
         practice_dock_->show();
         practice_dock_->raise();
+        QTimer::singleShot(0, this, [this] {
+            if (auto* md = findChild<QDockWidget*>(QStringLiteral("MeasurementsDock")))
+                resizeDocks({practice_dock_, md}, {620, 180}, Qt::Vertical);
+        });
     } catch (const std::exception& e) {
         showError(tr("Practice"), QString::fromStdString(e.what()));
         return false;

@@ -75,7 +75,7 @@ void BlandAltmanPlot::paintEvent(QPaintEvent*) {
     side(ba_.bias, bias_c, tr("bias"), text(ba_.bias, ba_.bias_ci_half));
     side(ba_.loa_low, loa_c, tr("lower limit"), text(ba_.loa_low, ba_.loa_ci_half));
     p.setPen(Qt::darkGray);
-    p.drawText(QPointF(plot.right() + 6, plot.bottom() + fm.height() * 1.6),
+    p.drawText(QPointF(plot.right() + 6, plot.bottom() + fm.height() * 2.4),
                tr("n = %1; ± = 95 % CI").arg(ba_.n));
 }
 

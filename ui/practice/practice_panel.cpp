@@ -30,7 +30,7 @@ PracticePanel::PracticePanel(CaseController* ctl, QWidget* parent) : QWidget(par
     lay->addWidget(header_);
     lay->addWidget(new QLabel(tr("Measure each structure and label the measurement with its name:")));
     tasks_ = new QListWidget;
-    tasks_->setMaximumHeight(130);
+    tasks_->setMaximumHeight(100);
     lay->addWidget(tasks_);
     auto* row = new QHBoxLayout;
     label_combo_ = new QComboBox;
@@ -51,14 +51,14 @@ PracticePanel::PracticePanel(CaseController* ctl, QWidget* parent) : QWidget(par
     summary_ = new QLabel;
     summary_->setWordWrap(true);
     lay->addWidget(summary_);
-    results_ = new QTableWidget(0, 6);
-    results_->setHorizontalHeaderLabels({tr("structure"), tr("measured"), tr("true"), tr("error"), tr("error / U"), tr("measurement")});
+    results_ = new QTableWidget(0, 5);
+    results_->setHorizontalHeaderLabels({tr("structure · target"), tr("measured"), tr("true"), tr("error"), tr("error / U")});
+    results_->setMinimumHeight(150);
     results_->horizontalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
     results_->verticalHeader()->hide();
     results_->setEditTriggers(QAbstractItemView::NoEditTriggers);
     results_->hide();
     lay->addWidget(results_, 1);
-    lay->addStretch();
     connect(apply_label_, &QPushButton::clicked, this, [this] { labelSelected(label_combo_->currentText()); });
     connect(submit_, &QPushButton::clicked, this, [this] {
         QString why;
@@ -174,11 +174,11 @@ void PracticePanel::showResults() {
             in_u = QString::number(*r.error_in_u, 'f', 1) + " U";
             if (std::abs(*r.error_in_u) <= 1.0) ++within;
         }
-        const QString items[] = {QString::fromStdString(r.structure + " · " + r.target + " (" + r.quantity + ")"), measured,
-                                 QString::number(r.true_mm, 'g', 6) + " mm", err, in_u,
-                                 QString::fromStdString(r.measurement_id)};
-        for (int c = 0; c < 6; ++c) {
+        const QString items[] = {QString::fromStdString(r.structure + " · " + r.target), measured,
+                                 QString::number(r.true_mm, 'g', 6) + " mm", err, in_u};
+        for (int c = 0; c < 5; ++c) {
             auto* it = new QTableWidgetItem(items[c]);
+            it->setToolTip(tr("%1 of measurement %2").arg(QString::fromStdString(r.quantity), QString::fromStdString(r.measurement_id)));
             if (c == 4 && r.error_in_u) it->setBackground(std::abs(*r.error_in_u) <= 1.0 ? QColor(215, 240, 215) : QColor(250, 225, 200));
             results_->setItem(row, c, it);
         }
