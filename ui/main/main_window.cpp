@@ -24,6 +24,7 @@
 #include <QMimeData>
 #include <QPlainTextEdit>
 #include <QProgressBar>
+#include <QScrollArea>
 #include <QSettings>
 #include <QStandardPaths>
 #include <QSlider>
@@ -587,7 +588,11 @@ bool MainWindow::startPractice(const QString& capture_path, const QString& train
             practice_ = new PracticePanel(ctl_);
             practice_dock_ = new QDockWidget(tr("Practice"), this);
             practice_dock_->setObjectName("PracticeDock");
-            practice_dock_->setWidget(practice_);
+            auto* scroll = new QScrollArea;  // the results never squeezed: scroll instead
+            scroll->setWidgetResizable(true);
+            scroll->setFrameShape(QFrame::NoFrame);
+            scroll->setWidget(practice_);
+            practice_dock_->setWidget(scroll);
             addDockWidget(Qt::RightDockWidgetArea, practice_dock_);
             // Practice takes the findings' place (a tab beside them): the results need the room.
             if (auto* fd = findChild<QDockWidget*>(QStringLiteral("FindingsDock"))) tabifyDockWidget(fd, practice_dock_);
@@ -609,8 +614,9 @@ bool MainWindow::startPractice(const QString& capture_path, const QString& train
         practice_dock_->show();
         practice_dock_->raise();
         QTimer::singleShot(0, this, [this] {
-            if (auto* md = findChild<QDockWidget*>(QStringLiteral("MeasurementsDock")))
-                resizeDocks({practice_dock_, md}, {620, 180}, Qt::Vertical);
+            auto* md = findChild<QDockWidget*>(QStringLiteral("MeasurementsDock"));
+            auto* fd = findChild<QDockWidget*>(QStringLiteral("FindingsDock"));
+            if (md && fd) resizeDocks({fd, md}, {640, 160}, Qt::Vertical);
         });
     } catch (const std::exception& e) {
         showError(tr("Practice"), QString::fromStdString(e.what()));

@@ -9,7 +9,9 @@
 #include <QLabel>
 #include <QListWidget>
 #include <QPushButton>
+#include <QScrollArea>
 #include <QTableWidget>
+#include <QTimer>
 #include <QVBoxLayout>
 
 #include <cmath>
@@ -53,7 +55,7 @@ PracticePanel::PracticePanel(CaseController* ctl, QWidget* parent) : QWidget(par
     lay->addWidget(summary_);
     results_ = new QTableWidget(0, 5);
     results_->setHorizontalHeaderLabels({tr("structure · target"), tr("measured"), tr("true"), tr("error"), tr("error / U")});
-    results_->setMinimumHeight(150);
+    results_->setMinimumHeight(190);
     results_->horizontalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
     results_->verticalHeader()->hide();
     results_->setEditTriggers(QAbstractItemView::NoEditTriggers);
@@ -151,6 +153,12 @@ bool PracticePanel::submit(QString* why) {
     submitted_ = true;
     showResults();
     refresh();
+    // Inside a scroll area (the practice dock): bring the results into view.
+    for (QWidget* w = parentWidget(); w; w = w->parentWidget())
+        if (auto* sa = qobject_cast<QScrollArea*>(w)) {
+            QTimer::singleShot(0, sa, [sa, t = results_] { sa->ensureWidgetVisible(t, 0, 0); });
+            break;
+        }
     emit lockedChanged(true);
     return true;
 }
