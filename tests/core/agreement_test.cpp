@@ -92,6 +92,12 @@ TEST(Agreement, CohenKappaWorkedExampleFleissLevinPaik) {
 TEST(Agreement, CohenKappaMatchesScikitLearnAndStatsmodels) {
     std::mt19937 rng(7);
     const std::vector<std::string> labels = interpretationLabels();
+    std::vector<CohenKappaResult> ours;
+    std::string script =
+        "import numpy as np\nfrom sklearn.metrics import cohen_kappa_score, confusion_matrix\n"
+        "from statsmodels.stats.inter_rater import cohens_kappa\nL = " + pyList(labels) + "\n"
+        "def check(a, b):\n    t = confusion_matrix(a, b, labels=L)\n    r = cohens_kappa(t)\n"
+        "    print(cohen_kappa_score(a, b, labels=L), r.std_kappa, r.kappa_low, r.kappa_upp)\n";
     for (int trial = 0; trial < 4; ++trial) {
         std::vector<std::string> a, b;
         std::discrete_distribution<int> pick({1, 2, 3, 6});
@@ -101,19 +107,16 @@ TEST(Agreement, CohenKappaMatchesScikitLearnAndStatsmodels) {
             a.push_back(labels[static_cast<size_t>(x)]);
             b.push_back(agree(rng) ? labels[static_cast<size_t>(x)] : labels[static_cast<size_t>(pick(rng))]);
         }
-        const ConfusionMatrix m = confusionMatrix(a, b, labels);
-        const CohenKappaResult k = cohenKappa(m);
-        const auto ref = numbers(python(
-            "import numpy as np\nfrom sklearn.metrics import cohen_kappa_score, confusion_matrix\n"
-            "from statsmodels.stats.inter_rater import cohens_kappa\n"
-            "a = " + pyList(a) + "\nb = " + pyList(b) + "\nL = " + pyList(labels) + "\n"
-            "t = confusion_matrix(a, b, labels=L)\nr = cohens_kappa(t)\n"
-            "print(cohen_kappa_score(a, b, labels=L), r.std_kappa, r.kappa_low, r.kappa_upp)\n"));
-        ASSERT_EQ(ref.size(), 4u) << "needs /usr/bin/python3 with sklearn and statsmodels";
-        EXPECT_NEAR(k.kappa, ref[0], 1e-12) << "trial " << trial;
-        EXPECT_NEAR(k.se, ref[1], 1e-12) << "trial " << trial;
-        EXPECT_NEAR(k.ci_low, ref[2], 1e-9) << "trial " << trial;
-        EXPECT_NEAR(k.ci_high, ref[3], 1e-9) << "trial " << trial;
+        ours.push_back(cohenKappa(confusionMatrix(a, b, labels)));
+        script += "check(" + pyList(a) + ", " + pyList(b) + ")\n";
+    }
+    const auto ref = numbers(python(script));
+    ASSERT_EQ(ref.size(), 16u) << "needs /usr/bin/python3 with sklearn and statsmodels";
+    for (size_t t = 0; t < 4; ++t) {
+        EXPECT_NEAR(ours[t].kappa, ref[4 * t], 1e-12) << "trial " << t;
+        EXPECT_NEAR(ours[t].se, ref[4 * t + 1], 1e-12) << "trial " << t;
+        EXPECT_NEAR(ours[t].ci_low, ref[4 * t + 2], 1e-9) << "trial " << t;
+        EXPECT_NEAR(ours[t].ci_high, ref[4 * t + 3], 1e-9) << "trial " << t;
     }
 }
 
