@@ -106,6 +106,11 @@ TEST(practice_ui_test, answers_hidden_until_submit_then_scored_logged_and_locked
     EXPECT_EQ(plot->data().n, 2u);
     EXPECT_NEAR(plot->data().bias, (0.3 - 0.1) / 2, 1e-9);
     dlg->close();
+    // Opening another capture ends practice mode and unlocks the tools.
+    const QString other = dir + "/other.h5";
+    ui::test::writePointCapture(other.toStdString(), 8, 1);
+    ASSERT_TRUE(w.openPath(other));
+    EXPECT_FALSE(p->active());
 }
 
 TEST(practice_ui_test, blind_copy_and_agreement_dialog) {

@@ -637,8 +637,15 @@ bool MainWindow::makeBlindCopy(const QString& path) {
     return true;
 }
 
+void MainWindow::leavePractice() {
+    if (!practice_ || !practice_->active()) return;
+    practice_->stop();
+    practice_dock_->hide();
+}
+
 bool MainWindow::openPath(const QString& path) {
     if (!maybeSave()) return false;
+    leavePractice();  // another capture or case: the practice attempt ends (a submitted one is logged)
     try {
         if (path.endsWith(".umbracase", Qt::CaseInsensitive) || path.endsWith(".autosave", Qt::CaseInsensitive)) {
             QString case_path = path;
@@ -918,6 +925,7 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
     if (demo_menu_) demo_menu_->setEnabled(true);
     QString hint;
     try {
+        leavePractice();
         ctl_->openCapture(main);
         core::CaseDocument t = ctl_->document();
         if (weld) {

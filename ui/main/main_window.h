@@ -96,6 +96,8 @@ protected:
 
 private:
     void buildActions();
+    /// Ends practice mode (tools unlocked, practice dock hidden) when another capture or case opens.
+    void leavePractice();
     void buildDocks();
     void buildStatusBar();
     void updateTitle();

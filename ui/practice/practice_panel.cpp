@@ -214,6 +214,19 @@ void PracticePanel::showResults() {
 
 QString PracticePanel::summaryText() const { return summary_->text(); }
 
+void PracticePanel::stop() {
+    set_.reset();
+    submitted_ = false;
+    attempt_ = {};
+    results_->hide();
+    summary_->clear();
+    tasks_->clear();
+    label_combo_->clear();
+    header_->setText(tr("No practice set open (Practice → Start practice set…)."));
+    refresh();
+    emit lockedChanged(false);
+}
+
 void PracticePanel::newAttempt() {
     if (!set_) return;
     ctl_->setMeasurements({});

@@ -35,6 +35,8 @@ public:
     /// results. False (with `why`) when nothing is labelled with a structure, already submitted,
     /// or the log cannot be written.
     bool submit(QString* why = nullptr);
+    /// Leaves practice mode (another capture or case was opened): no set, unlocked.
+    void stop();
     /// Clears the measurements (undoable) and unlocks for another attempt.
     void newAttempt();
     /// Labels the selected measurement with structure `label` (undoable relabel).
