@@ -2,6 +2,7 @@
 #include "core/agreement.h"
 
 #include <algorithm>
+#include <cstdio>
 #include <cmath>
 #include <limits>
 #include <map>
@@ -363,6 +364,13 @@ std::string num(double v, double u) {
     return rr.value_text;
 }
 
+/// A stated setting or a position copied from a finding (already rounded there): shortest form.
+std::string plain(double v) {
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.4g", v);
+    return buf;
+}
+
 std::string countText(double c) { return std::to_string(static_cast<long long>(std::llround(c))); }
 
 ReportTable confusionTable(const std::string& caption, const ConfusionMatrix& m, const std::string& row_reader,
@@ -424,25 +432,26 @@ ReportSection agreementReportSection(const AgreementResult& r) {
     for (size_t i = 0; i < r.readers.size(); ++i) readers += (i ? ", " : "") + ("reader " + std::to_string(i + 1) + " = " + r.readers[i]);
     s.paragraphs.push_back(readers + ".");
     s.paragraphs.push_back("Indications match when they lie on the same capture (SHA-256) and frame with centres within " +
-                           num(r.match_distance_mm, 0.05) + " mm. Found by every reader: " + std::to_string(r.matched) +
+                           plain(r.match_distance_mm) + " mm. Found by every reader: " + std::to_string(r.matched) +
                            "; found by some readers only: " + std::to_string(r.unmatched) + ".");
     const std::string a = r.readers.size() == 2 ? "reader 1" : "reader i";
     const std::string b = r.readers.size() == 2 ? "reader 2" : "reader j > i";
     for (int which = 0; which < 2; ++which) {
         const KappaSummary& k = which == 0 ? r.interpretation : r.evaluation;
         const std::string what = which == 0 ? "Interpretation" : "Evaluation";
+        const std::string table_what = which == 0 ? "Interpretation class" : "Evaluation outcome";
         std::string line = what + ": ";
         if (k.cohen) line += formatKappa(*k.cohen);
         else if (k.fleiss) line += formatKappa(*k.fleiss);
         else line += "no indication found by every reader";
         s.paragraphs.push_back(line + ".");
-        s.tables.push_back(confusionTable(what + " class, matched indications" +
+        s.tables.push_back(confusionTable(table_what + ", matched indications" +
                                               (r.readers.size() > 2 ? " (summed over reader pairs)" : ""),
                                           k.confusion, a, b));
     }
     for (const auto& sz : r.sizes)
-        s.paragraphs.push_back("Size (" + sz.quantity + ", later reader − reader 1): " + formatBlandAltman(sz.ba, "mm") +
-                               " (Bland & Altman 1986).");
+        s.paragraphs.push_back("Size (" + sz.quantity + ", later reader − reader 1; Bland & Altman 1986): " +
+                               formatBlandAltman(sz.ba, "mm") + ".");
     ReportTable un;
     un.caption = "Indications found by some readers only";
     un.header = {"readers", "findings", "capture frame", "x (mm)", "depth (mm)"};
@@ -454,8 +463,8 @@ ReportSection agreementReportSection(const AgreementResult& r) {
             ids += (ids.empty() ? "" : ", ") + m.id;
         }
         const auto& m0 = g.members.front();
-        un.rows.push_back({rd, ids, std::to_string(m0.frame), m0.x_mm ? num(*m0.x_mm, 0.05) : "—",
-                           m0.depth_mm ? num(*m0.depth_mm, 0.05) : "—"});
+        un.rows.push_back({rd, ids, std::to_string(m0.frame), m0.x_mm ? plain(*m0.x_mm) : "—",
+                           m0.depth_mm ? plain(*m0.depth_mm) : "—"});
     }
     s.tables.push_back(un);
     return s;
