@@ -329,7 +329,7 @@ std::string folderOf(const std::string& path) {
 
 }  // namespace
 
-std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
+std::string caseToJson(const CaseDocument& doc, const std::string& base_dir, bool absolute_fallback) {
     json j = json::object();
     j["format"] = kFormatTag;
     j["version"] = kCaseVersion;
@@ -349,7 +349,7 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir) {
         const CaseCapture& c = doc.captures[i];
         json cj = json::object();
         cj["path"] = storedPath(c.path, base_dir);
-        if (!base_dir.empty()) cj["path_absolute"] = absolutePath(c.path);
+        if (!base_dir.empty() && absolute_fallback) cj["path_absolute"] = absolutePath(c.path);
         cj["sha256"] = c.sha256;
         if (c.recipe_json.empty()) {
             cj["recipe"] = nullptr;
@@ -510,9 +510,9 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
     return doc;
 }
 
-void saveCase(const std::string& path, const CaseDocument& doc) {
+void saveCase(const std::string& path, const CaseDocument& doc, bool absolute_fallback) {
     const std::string folder = folderOf(path);
-    const std::string text = caseToJson(doc, folder);
+    const std::string text = caseToJson(doc, folder, absolute_fallback);
     writeFileAtomic(path, text, ".saving");
 }
 

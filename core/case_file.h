@@ -78,8 +78,9 @@ struct CaseDocument {
 
 /// JSON text of the case. Capture paths are written relative to `base_dir` when they lie
 /// under it (or can be reached with "../"), with the absolute path beside them as a fallback
-/// ("path_absolute"); `base_dir` empty = paths written as they are.
-std::string caseToJson(const CaseDocument& doc, const std::string& base_dir = "");
+/// ("path_absolute"; left out when `absolute_fallback` is false); `base_dir` empty = paths
+/// written as they are.
+std::string caseToJson(const CaseDocument& doc, const std::string& base_dir = "", bool absolute_fallback = true);
 /// Parses and checks a case. Relative capture paths are resolved against `base_dir`; when that
 /// file does not exist but the recorded absolute path does, the absolute path is used.
 /// Throws InputError naming `source` and the JSON key (e.g. "findings[2].interpretation")
@@ -89,8 +90,8 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source,
 
 /// Saves atomically: writes a temporary file in the same folder, flushes and fsyncs it, renames
 /// it over `path` (and fsyncs the folder). On failure the old file is untouched and InputError
-/// naming `path` is thrown.
-void saveCase(const std::string& path, const CaseDocument& doc);
+/// naming `path` is thrown. `absolute_fallback` false: no "path_absolute" beside relative paths.
+void saveCase(const std::string& path, const CaseDocument& doc, bool absolute_fallback = true);
 /// Reads a case file; relative capture paths resolve against the file's folder.
 CaseDocument loadCase(const std::string& path);
 /// Sibling autosave path: "<folder>/<name>.umbracase.autosave" (".umbracase" added if missing).

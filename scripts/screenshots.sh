@@ -4,7 +4,7 @@
 # (1480 x 920). Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
-# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,weld-export-light,report-page,dac}.png.
+# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,weld-export-light,report-page,dac,practice-result,practice-progress}.png.
 # umbra writes each PNG under a temporary name and renames it; this script then checks that every
 # PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail
@@ -53,7 +53,33 @@ fi
 if [ -f "$samples/reference_block.h5" ]; then
   run "$samples/reference_block.h5" --demo-reference --demo-tcg --screenshot "$out/dac.png" --timeout 240
 fi
-for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png; do
+# Practice set C: four attempts by one trainee (one practice log, kept in a private data folder
+# across the runs), each placing calipers and an ellipse and submitting; the last one is shot
+# with its results, and the progress view (Bland-Altman of measured - true, error per structure).
+if [ -f "$samples/practice_set_c.h5" ]; then
+  phome=$(mktemp -d)
+  practice() {
+    XDG_CONFIG_HOME="$phome/config" XDG_DATA_HOME="$phome/data" xvfb-run -a -s "-screen 0 1600x1000x24" "$umbra" \
+      --practice "$samples/practice_set_c.h5" --trainee "Trainee A" --demo-submit --timeout 240 "$@"
+  }
+  attempt() {  # nodule C1, cyst C2, vessel C3 (across), lesion C4 (ellipse), vessel C3 (along): positions in mm
+    local m=(--demo-measurement "caliper;nodule C1;$1,11;$2,11" --demo-measurement "caliper;cyst C2;$3,16;$4,16"
+             --demo-measurement "caliper;vessel C3;-10,$5;-10,$6" --demo-measurement "ellipse;lesion C4;9,32;$7;$8"
+             --demo-measurement "caliper;vessel C3;$9,26;${10},26")
+    shift 10
+    practice --screenshot "$phome/attempt.png" "${m[@]}" "$@"
+  }
+  attempt 3.0 9.1 -13.9 -10.0 23.5 28.6 15.2,35.6 7.0,35.6 -17.0 -2.5
+  attempt 3.3 8.9 -13.6 -10.3 23.8 28.3 14.6,35.2 7.1,35.3 -17.5 -2.3
+  attempt 3.5 8.6 -13.5 -10.5 24.0 28.1 14.3,35.1 7.2,35.1 -17.8 -2.2
+  attempt 3.45 8.5 -13.5 -10.45 24.0 28.05 14.25,35.05 7.2,35.05 -17.8 -2.1 \
+    --progress-screenshot "$out/practice-progress.png"
+  mv "$phome/attempt.png" "$out/practice-result.png"
+  rm -rf "$phome"
+else
+  echo "screenshots: $samples/practice_set_c.h5 missing; practice screenshots skipped" >&2
+fi
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png "$out"/practice-result.png "$out"/practice-progress.png; do
   [ -f "$f" ] || continue
   /usr/bin/python3 - "$f" <<'PY'
 import struct, sys, zlib

@@ -17,6 +17,8 @@ int cmdBatch(const Argv& args);
 int cmdMeasure(const Argv& args);
 int cmdExportFindings(const Argv& args);
 int cmdReport(const Argv& args);
+int cmdBlindCopy(const Argv& args);
+int cmdAgreement(const Argv& args);
 
 struct Command {
     const char* name;

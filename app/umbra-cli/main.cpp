@@ -19,6 +19,8 @@ const std::vector<Command>& commands() {
         {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
         {"report", "write a PDF report of a case (findings, images, technique, provenance)", cmdReport},
         {"export-findings", "write a case's findings and measurements as a CSV or JSON table", cmdExportFindings},
+        {"blind-copy", "copy a case for a blind second reading (captures and recipes only)", cmdBlindCopy},
+        {"agreement", "inter-reader agreement of two or more cases on the same captures (kappa, Bland-Altman)", cmdAgreement},
     };
     return table;
 }

@@ -11,6 +11,7 @@
 #include <QApplication>
 #include <QCommandLineParser>
 #include <QFileInfo>
+#include <QInputDialog>
 #include <QMessageBox>
 #include <QTimer>
 
@@ -19,7 +20,9 @@
 #include <vector>
 
 #include "ui/controller/case_controller.h"
+#include "core/measurement.h"
 #include "ui/main/main_window.h"
+#include "ui/practice/practice_panel.h"
 
 int main(int argc, char** argv) {
     QApplication app(argc, argv);
@@ -56,7 +59,17 @@ int main(int argc, char** argv) {
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
-    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, themeOpt, reportOpt, frame, set, timeout}) cl.addOption(o);
+    QCommandLineOption practice("practice", "Start practice mode on CAPTURE (its answer file CAPTURE-stem.answers.json beside it).", "CAPTURE");
+    QCommandLineOption trainee("trainee", "With --practice: the trainee's name (the practice log is kept under it).", "NAME");
+    QCommandLineOption demoMeasure("demo-measurement",
+                                   "With --screenshot: place a measurement, KIND;LABEL;X,Z;X,Z... in mm (KIND caliper, depth marker, "
+                                   "extent box, ellipse; repeatable).",
+                                   "SPEC");
+    QCommandLineOption demoSubmit("demo-submit", "With --practice and --screenshot: submit the attempt before the screenshot.");
+    QCommandLineOption progressShot("progress-screenshot", "With --practice and --screenshot: also grab the progress view to FILE.", "FILE");
+    for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout, themeOpt, reportOpt,
+                          practice, trainee, demoMeasure, demoSubmit, progressShot})
+        cl.addOption(o);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -70,7 +83,12 @@ int main(int argc, char** argv) {
     w.show();  // screenshots at the default window size
 
     bool ok = true;
-    if (cl.isSet(demo)) ok = w.openDemoCase(cl.value(demo), cl.value(demoCase));
+    if (cl.isSet(practice)) {
+        QString who = cl.value(trainee);
+        if (who.trimmed().isEmpty() && !screenshot)
+            who = QInputDialog::getText(&w, QObject::tr("Trainee"), QObject::tr("Your name (your practice log is kept under it):"));
+        ok = w.startPractice(cl.value(practice), who);
+    } else if (cl.isSet(demo)) ok = w.openDemoCase(cl.value(demo), cl.value(demoCase));
     else if (!cl.positionalArguments().isEmpty()) ok = w.openPath(cl.positionalArguments().front());
     else if (!screenshot && QFileInfo::exists(umbra::ui::CaseController::untitledAutosavePath()) &&
              QMessageBox::question(&w, QObject::tr("Recover unsaved work?"),
@@ -172,12 +190,35 @@ int main(int argc, char** argv) {
         }
         const double limit_s = cl.value(timeout).toDouble();
         const bool make_tcg = cl.isSet(demoTcg);
+        std::vector<umbra::core::Measurement> demo_ms;
+        for (const QString& spec : cl.values(demoMeasure)) {
+            const QStringList parts = spec.split(';');
+            const auto kind = parts.size() >= 3 ? umbra::core::kindFromName(parts[0].toStdString()) : std::nullopt;
+            umbra::core::Measurement m;
+            if (kind) {
+                m.kind = *kind;
+                m.label = parts[1].toStdString();
+                for (int i = 2; i < parts.size(); ++i) {
+                    const QStringList xz = parts[i].split(',');
+                    if (xz.size() == 2) m.points.push_back({xz[0].toDouble(), xz[1].toDouble()});
+                }
+            }
+            if (!kind || m.points.size() != umbra::core::pointCount(m.kind)) {
+                std::fprintf(stderr, "umbra: --demo-measurement '%s': expected KIND;LABEL;X,Z;... with the kind's number of points\n",
+                             spec.toLocal8Bit().constData());
+                return 2;
+            }
+            demo_ms.push_back(m);
+        }
+        const bool submit = cl.isSet(demoSubmit);
+        const QString progress_out = cl.value(progressShot);
         auto* timer = new QTimer(&w);
         auto* elapsed = new double(0);
         auto* phase = new int(ref_capture >= 0 ? 0 : 2);  // 0 go to the block, 1 take the reference, 2 shoot
         const bool timed = opt.timings;
         QObject::connect(timer, &QTimer::timeout, &w, [&w, ctl, out, exp, ann, limit_s, timer, elapsed, idle, timed, reportTimings,
-                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell, make_tcg, theme, report_path] {
+                                                       phase, ref_capture, applySets, cap, has_frame, frame_index, ell, make_tcg, theme, report_path,
+                                                       demo_ms, submit, progress_out] {
             *elapsed += 0.25;
             if (*phase == 0) {
                 ctl->setActiveCapture(static_cast<size_t>(ref_capture));
@@ -224,7 +265,23 @@ int main(int argc, char** argv) {
                             "Round echo-free region with a bright far wall; demonstration annotation placed at a stated position.";
                 ctl->editFindings(fs, "Describe finding");
             }
-            QTimer::singleShot(300, &w, [&w, out, exp, theme, report_path] {
+            for (auto m : demo_ms) {
+                m.frame_index = ctl->currentFrame();
+                ctl->addMeasurement(m);
+            }
+            if (submit && w.practicePanel()) {
+                QString why;
+                if (!w.practicePanel()->submit(&why)) std::fprintf(stderr, "umbra: --demo-submit: %s\n", why.toLocal8Bit().constData());
+            }
+            if (!progress_out.isEmpty() && w.practicePanel()) {
+                QWidget* dlg = w.practicePanel()->showProgress(false);
+                QTimer::singleShot(300, dlg, [dlg, progress_out] {
+                    const bool saved = dlg->grab().save(progress_out, "PNG");
+                    std::fprintf(stderr, "umbra: progress screenshot %s %s\n", progress_out.toLocal8Bit().constData(),
+                                 saved ? "written" : "FAILED");
+                });
+            }
+            QTimer::singleShot(600, &w, [&w, out, exp, theme, report_path] {
                 // Written to a temporary name and renamed, so that an interrupted run or two
                 // runs at once never leave a half-written PNG under the final name.
                 const QString tmp = out + ".part";

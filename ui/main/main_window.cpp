@@ -26,7 +26,9 @@
 #include <QMimeData>
 #include <QPlainTextEdit>
 #include <QProgressBar>
+#include <QScrollArea>
 #include <QSettings>
+#include <QStandardPaths>
 #include <QSlider>
 #include <QSpinBox>
 #include <QStatusBar>
@@ -42,8 +44,12 @@
 #include <fstream>
 #include <sstream>
 
+#include "core/blind_copy.h"
 #include "core/case_file.h"
 #include "core/error.h"
+#include "core/practice.h"
+#include "ui/agreement/agreement_dialog.h"
+#include "ui/practice/practice_panel.h"
 #include "ui/controller/case_controller.h"
 #include "ui/dac/curve_panel.h"
 #include "ui/export/image_export.h"
@@ -235,6 +241,12 @@ void MainWindow::buildActions() {
     a = file->addAction(tr("Save case &as…"), this, &MainWindow::saveAs);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S));
     file->addAction(tr("&Relocate capture…"), this, &MainWindow::relocate);
+    a = file->addAction(tr("Make &blind copy…"), this, [this] {
+        const QString p = QFileDialog::getSaveFileName(this, tr("Blind copy for a second reader"), inCaseFolder("blind.umbracase"),
+                                                       tr("Umbra cases (*.umbracase)"));
+        if (!p.isEmpty()) makeBlindCopy(p);
+    });
+    a->setToolTip(tr("A new case with the same captures and recipes, without measurements, findings, texts or amplitude reference"));
     file->addSeparator();
     file->addAction(tr("Load recipe…"), this, &MainWindow::loadRecipe);
     file->addAction(tr("Save recipe…"), this, &MainWindow::saveRecipe);
@@ -356,6 +368,29 @@ void MainWindow::buildActions() {
     a->setToolTip(tr("TCG gain that raises each depth by the curve's fall from its shallowest point: equal holes display equal"));
     a = tools->addAction(tr("Clear distance–amplitude curve"), this, [this] {
         ctl_->editCurve(std::nullopt, tr("Clear the distance–amplitude curve"));
+    });
+
+    tools->addSeparator();
+    a = tools->addAction(tr("Inter-reader &agreement…"), this, [this] {
+        auto* dlg = new AgreementDialog(this);
+        dlg->setAttribute(Qt::WA_DeleteOnClose);
+        dlg->show();
+    });
+    a->setToolTip(tr("Compare the findings of cases read independently on the same captures (kappa, Bland–Altman)"));
+
+    QMenu* practice = menuBar()->addMenu(tr("&Practice"));
+    practice->addAction(tr("Start practice set…"), this, [this] {
+        const QString cap = QFileDialog::getOpenFileName(this, tr("Practice set capture (an answer file X.answers.json lies beside X.h5)"),
+                                                         demo_dir_.isEmpty() ? caseFolder() : demo_dir_, tr("Captures (*.h5)"));
+        if (cap.isEmpty()) return;
+        bool ok = false;
+        const QString who = QInputDialog::getText(this, tr("Trainee"), tr("Your name (your practice log is kept under it on this computer):"),
+                                                  QLineEdit::Normal, practice_ ? practice_->trainee() : QString(), &ok);
+        if (ok) startPractice(cap, who.trimmed());
+    });
+    practice->addAction(tr("Practice progress…"), this, [this] {
+        if (practice_ && practice_->active()) practice_->showProgress(true);
+        else showError(tr("Practice progress"), tr("Start a practice set first: the progress view shows that trainee's log."));
     });
 
     QMenu* view = menuBar()->addMenu(tr("&View"));
@@ -537,8 +572,86 @@ void MainWindow::open() {
     if (!p.isEmpty()) openPath(p);
 }
 
+QString MainWindow::practiceFolder() {
+    return QDir(QStandardPaths::writableLocation(QStandardPaths::AppLocalDataLocation)).filePath(QStringLiteral("practice"));
+}
+
+bool MainWindow::startPractice(const QString& capture_path, const QString& trainee, const QString& log_folder) {
+    const std::string answers = core::PracticeSet::answersPathFor(capture_path.toStdString());
+    if (answers.empty()) {
+        showError(tr("Practice"), tr("%1 is not a practice set: there is no answer file %2 beside it.")
+                                      .arg(capture_path, QFileInfo(capture_path).completeBaseName() + ".answers.json"));
+        return false;
+    }
+    if (trainee.trimmed().isEmpty()) {
+        showError(tr("Practice"), tr("Type the trainee's name: the practice log is kept under it."));
+        return false;
+    }
+    try {
+        const core::PracticeSet set = core::PracticeSet::load(answers);
+        if (!openPath(capture_path)) return false;
+        if (!practice_) {
+            practice_ = new PracticePanel(ctl_);
+            practice_dock_ = new QDockWidget(tr("Practice"), this);
+            practice_dock_->setObjectName("PracticeDock");
+            auto* scroll = new QScrollArea;  // the results never squeezed: scroll instead
+            scroll->setWidgetResizable(true);
+            scroll->setFrameShape(QFrame::NoFrame);
+            scroll->setWidget(practice_);
+            practice_dock_->setWidget(scroll);
+            addDockWidget(Qt::RightDockWidgetArea, practice_dock_);
+            // Practice takes the findings' place (a tab beside them): the results need the room.
+            if (auto* fd = findChild<QDockWidget*>(QStringLiteral("FindingsDock"))) tabifyDockWidget(fd, practice_dock_);
+            connect(practice_, &PracticePanel::lockedChanged, this, [this](bool locked) {
+                if (locked) setTool(Tool::Select);
+                tools_->setEnabled(!locked);
+            });
+        }
+        // "practice_set_c" → "Practice set C"
+        QStringList words = QString::fromStdString(set.scenario().empty() ? QFileInfo(capture_path).completeBaseName().toStdString()
+                                                                          : set.scenario())
+                                .split('_', Qt::SkipEmptyParts);
+        for (QString& word : words)
+            if (word.size() == 1) word = word.toUpper();
+        if (!words.isEmpty()) words[0][0] = words[0][0].toUpper();
+        const QString title = words.join(' ') + tr(" (synthetic)");
+        practice_->start(set, trainee.trimmed(), log_folder.isEmpty() ? practiceFolder() : log_folder, title);
+        tools_->setEnabled(true);
+        practice_dock_->show();
+        practice_dock_->raise();
+        QTimer::singleShot(0, this, [this] {
+            auto* md = findChild<QDockWidget*>(QStringLiteral("MeasurementsDock"));
+            auto* fd = findChild<QDockWidget*>(QStringLiteral("FindingsDock"));
+            if (md && fd) resizeDocks({fd, md}, {640, 160}, Qt::Vertical);
+        });
+    } catch (const std::exception& e) {
+        showError(tr("Practice"), QString::fromStdString(e.what()));
+        return false;
+    }
+    return true;
+}
+
+bool MainWindow::makeBlindCopy(const QString& path) {
+    try {
+        const core::CaseDocument blind = core::blindCopy(ctl_->document());
+        core::saveCase(path.toStdString(), blind, /*absolute_fallback=*/false);
+        statusBar()->showMessage(tr("Blind copy written to %1 (captures and recipes only)").arg(path), 10000);
+    } catch (const std::exception& e) {
+        showError(tr("Cannot write the blind copy"), QString::fromStdString(e.what()));
+        return false;
+    }
+    return true;
+}
+
+void MainWindow::leavePractice() {
+    if (!practice_ || !practice_->active()) return;
+    practice_->stop();
+    practice_dock_->hide();
+}
+
 bool MainWindow::openPath(const QString& path) {
     if (!maybeSave()) return false;
+    leavePractice();  // another capture or case: the practice attempt ends (a submitted one is logged)
     try {
         if (path.endsWith(".umbracase", Qt::CaseInsensitive) || path.endsWith(".autosave", Qt::CaseInsensitive)) {
             QString case_path = path;
@@ -901,6 +1014,7 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
     if (demo_menu_) demo_menu_->setEnabled(true);
     QString hint;
     try {
+        leavePractice();
         ctl_->openCapture(main);
         core::CaseDocument t = ctl_->document();
         if (weld) {

@@ -27,6 +27,7 @@ namespace umbra::ui {
 class CaseController;
 class CurvePanel;
 class ImageView;
+class PracticePanel;
 class RecipePanel;
 class TraceView;
 class TopView;
@@ -72,6 +73,15 @@ public:
     /// prints the curve (dB re its shallowest point) to stderr. False if any is missing.
     bool demoCurve(const std::vector<double>& depths_mm = {5, 10, 15, 20});
     void demoAnnotate();
+    /// Practice mode: opens the capture of a practice set (its answer file "X.answers.json"
+    /// beside "X.h5" stays hidden until Submit) and starts an attempt for `trainee`, logged in
+    /// `log_folder` (default practiceFolder()). False (after telling the user) on error.
+    bool startPractice(const QString& capture_path, const QString& trainee, const QString& log_folder = {});
+    PracticePanel* practicePanel() const { return practice_; }
+    /// Folder of the practice logs: "practice" under the user's application data location.
+    static QString practiceFolder();
+    /// Writes a blind copy of the open case (core::blindCopy) to `path`. False after telling the user.
+    bool makeBlindCopy(const QString& path);
     /// Writes the annotated PNG of the current view.
     bool exportImage(const QString& path, int width_px, Theme theme = Theme::Dark);
     /// Writes the PDF report of the case as it is now (ui/report). False (and a message) on error.
@@ -93,6 +103,8 @@ protected:
 
 private:
     void buildActions();
+    /// Ends practice mode (tools unlocked, practice dock hidden) when another capture or case opens.
+    void leavePractice();
     void buildDocks();
     void buildStatusBar();
     void updateTitle();
@@ -134,6 +146,8 @@ private:
     QWidget* findings_ = nullptr;
     QWidget* table_ = nullptr;
     QDockWidget* top_dock_ = nullptr;
+    PracticePanel* practice_ = nullptr;
+    QDockWidget* practice_dock_ = nullptr;
     QMenu* demo_menu_ = nullptr;
     QString demo_dir_;
 
