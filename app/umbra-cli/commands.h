@@ -15,6 +15,8 @@ int cmdSimulate(const Argv& args);
 int cmdReconstruct(const Argv& args);
 int cmdBatch(const Argv& args);
 int cmdMeasure(const Argv& args);
+int cmdImport(const Argv& args);
+int cmdExportDicom(const Argv& args);
 
 struct Command {
     const char* name;

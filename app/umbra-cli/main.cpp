@@ -12,11 +12,13 @@ namespace umbra::cli {
 const std::vector<Command>& commands() {
     static const std::vector<Command> table = {
         {"info", "print a readable summary of a capture", cmdInfo},
-        {"validate", "check a capture against format v1; exit 2 listing each problem", cmdValidate},
+        {"validate", "check a capture against format v1 (or a DICOM image by content); exit 2 listing each problem", cmdValidate},
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
         {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
+        {"import", "read a DICOM ultrasound image (stored frames) into an image file", cmdImport},
+        {"export-dicom", "write an image file's frames as a DICOM ultrasound (multi-frame) image", cmdExportDicom},
     };
     return table;
 }
