@@ -23,7 +23,9 @@ class QToolButton;
 namespace umbra::ui {
 
 class CaseController;
+class CineControls;
 class CurvePanel;
+class StoredImageWindow;
 class ImageView;
 class RecipePanel;
 class TraceView;
@@ -70,6 +72,13 @@ public:
     /// prints the curve (dB re its shallowest point) to stderr. False if any is missing.
     bool demoCurve(const std::vector<double>& depths_mm = {5, 10, 15, 20});
     void demoAnnotate();
+    /// Opens a stored image (DICOM ultrasound) in its own window; nullptr (after telling the
+    /// user) when it cannot be read. The case is not touched.
+    StoredImageWindow* openStoredImage(const QString& path);
+    /// Writes the current frame as displayed (grey levels of the display chain) as a DICOM
+    /// Ultrasound Image with its region calibration; false (after telling the user) on error.
+    bool exportDicom(const QString& path);
+    CineControls* cine() const { return cine_; }
     /// Writes the annotated PNG of the current view.
     bool exportImage(const QString& path, int width_px);
     /// Asks the user for a replacement of a missing/changed capture (interactive only).
@@ -98,6 +107,7 @@ private:
     bool save();
     bool saveAs();
     void exportDialog();
+    void exportDicomDialog();
     void relocate();
     void loadRecipe();
     void saveRecipe();
@@ -134,6 +144,7 @@ private:
     QAction* redo_ = nullptr;
     QSlider* frame_slider_ = nullptr;
     QLabel* frame_label_ = nullptr;
+    CineControls* cine_ = nullptr;
     QComboBox* capture_combo_ = nullptr;
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;
