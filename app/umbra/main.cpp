@@ -9,6 +9,7 @@
 //   umbra ... --screenshot FILE [--demo-annotate] [--demo-reference [--demo-tcg]] [--capture N] [--export FILE]
 #include <QApplication>
 #include <QCommandLineParser>
+#include <QFile>
 #include <QFileInfo>
 #include <QMessageBox>
 #include <QTimer>
@@ -19,6 +20,7 @@
 
 #include "ui/controller/case_controller.h"
 #include "ui/main/main_window.h"
+#include "ui/stored/stored_image_window.h"
 
 int main(int argc, char** argv) {
     QApplication app(argc, argv);
@@ -53,6 +55,9 @@ int main(int argc, char** argv) {
     QCommandLineOption frame("frame", "Show frame N (0-based).", "N");
     QCommandLineOption set("set", "Change one recipe setting after opening (repeatable), e.g. grid.step_mm=0.05.", "stage.param=value");
     QCommandLineOption timeout("timeout", "With --screenshot: give up waiting after S seconds.", "S", "300");
+    QCommandLineOption storedCaliper("stored-caliper", "With --screenshot of a DICOM image: caliper from column C0, row R0 to C1, R1 (pixels).",
+                                     "C0,R0,C1,R1");
+    cl.addOption(storedCaliper);
     for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout}) cl.addOption(o);
     cl.process(app);
 
@@ -150,6 +155,27 @@ int main(int argc, char** argv) {
         t->start(100);
     }
 
+    // A stored DICOM image opens in its own window: with --screenshot, place the caliper given by
+    // --stored-caliper (pixel columns and rows) and grab that window.
+    if (screenshot && ok) {
+        if (auto* sw = w.findChild<umbra::ui::StoredImageWindow*>()) {
+            const QStringList c = cl.value(storedCaliper).split(',', Qt::SkipEmptyParts);
+            if (c.size() == 4) sw->setCaliper(c[0].toDouble(), c[1].toDouble(), c[2].toDouble(), c[3].toDouble());
+            if (cl.isSet(frame)) sw->setCurrentFrame(size_t(cl.value(frame).toULongLong()));
+            const QString out = cl.value(shot);
+            QTimer::singleShot(600, sw, [sw, out] {
+                const QString tmp = out + ".part";
+                bool saved = sw->grab().save(tmp, "PNG");
+                if (saved) {
+                    QFile::remove(out);
+                    saved = QFile::rename(tmp, out);
+                }
+                std::fprintf(stderr, "umbra: screenshot %s %s\n", out.toLocal8Bit().constData(), saved ? "written" : "FAILED");
+                QApplication::exit(saved ? 0 : 3);
+            });
+            return QApplication::exec();
+        }
+    }
     if (screenshot) {
         if (!ok) return 1;
         const QString out = cl.value(shot);

@@ -126,7 +126,7 @@ void StoredFrameView::paintEvent(QPaintEvent*) {
         p.drawText(QRectF(tl.x() - 54, wz - 8, 46, 16), Qt::AlignRight | Qt::AlignVCenter, QString::number(v, 'g', 6));
     }
     p.drawText(QRectF(tl.x() - 54, tl.y() - 24, 50, 16), Qt::AlignRight | Qt::AlignVCenter,
-               cal ? tr("x, depth (mm)") : tr("px"));
+               cal ? tr("mm") : tr("px"));
     Q_UNUSED(unit);
     if (caliper_) {
         const QPointF a = toWidget(caliper_->first), b = toWidget(caliper_->second);
