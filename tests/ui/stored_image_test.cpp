@@ -126,4 +126,11 @@ TEST(StoredImage, ExportDicomWritesDisplayedFrameWithGrid) {
     EXPECT_NEAR(d.calibration->x0_m, env->x_m[0], 1e-12);
     EXPECT_NEAR(d.calibration->z0_m, env->z_m[0], 1e-12);
     EXPECT_TRUE(d.synthetic);  // the test capture is labelled synthetic
+    // The same cine controls play a multi-frame capture: each frame is beamformed, then the next.
+    mw.cine()->setFrameRate(50, QStringLiteral("test"));
+    mw.cine()->setLoop(false);
+    mw.cine()->play();
+    ASSERT_TRUE(ui::test::waitUntil([&] { return mw.controller()->currentFrame() == 1u; }));
+    ASSERT_TRUE(ui::test::waitUntil([&] { return !mw.cine()->isPlaying(); }));  // paused at the last frame
+    EXPECT_EQ(mw.controller()->currentFrame(), 1u);
 }
