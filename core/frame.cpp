@@ -51,6 +51,7 @@ struct ImageWriter::Impl {
     std::string sha256;
     std::vector<double> scan_position_m;
     AcquisitionFacts acquisition;
+    bool axes_in_pixels = false;
     bool finished = false;
 };
 
@@ -124,6 +125,7 @@ void ImageWriter::append(const float* envelope, size_t count) {
 void ImageWriter::setCaptureSha256(const std::string& sha256) { impl_->sha256 = sha256; }
 void ImageWriter::setScanPositions(const std::vector<double>& scan_position_m) { impl_->scan_position_m = scan_position_m; }
 void ImageWriter::setAcquisition(const AcquisitionFacts& facts) { impl_->acquisition = facts; }
+void ImageWriter::setAxesInPixels(bool px) { impl_->axes_in_pixels = px; }
 
 void ImageWriter::finish() {
     Impl& I = *impl_;
@@ -146,6 +148,7 @@ void ImageWriter::finish() {
             for (const auto& [name, v] : opt)
                 if (*v) writeDoubleAttr(I.file.get(), name, **v);
             if (a.wedge) writeIntAttr(I.file.get(), "wedge", 1);
+            if (I.axes_in_pixels) writeStringAttr(I.file.get(), "axes_unit", "px");
             if (!a.view_mode.empty()) writeStringAttr(I.file.get(), "view_mode", a.view_mode);
             if (!a.image_frame.empty()) writeStringAttr(I.file.get(), "image_frame", a.image_frame);
         } catch (const std::exception& e) {
@@ -169,6 +172,7 @@ void writeImageFile(const std::string& path, const ImageStack& img) {
     w.setCaptureSha256(img.capture_sha256);
     w.setScanPositions(img.scan_position_m);
     w.setAcquisition(img.acquisition);
+    w.setAxesInPixels(img.axes_in_pixels);
     w.finish();
 }
 
@@ -253,6 +257,11 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
         auto v = readStringAttr(f.get(), "image_frame", err);
         if (!v || (*v != "array" && *v != "specimen")) throw InputError(path, "/@image_frame", "must be \"array\" or \"specimen\"");
         acq.image_frame = *v;
+    }
+    if (attrExists(f.get(), "axes_unit")) {
+        auto u = readStringAttr(f.get(), "axes_unit", err);
+        if (!u || (*u != "px" && *u != "m")) throw InputError(path, "/@axes_unit", "must be 'm' or 'px'");
+        img.axes_in_pixels = *u == "px";
     }
     img.x_m = *x;
     img.z_m = *z;

@@ -48,6 +48,9 @@ struct ImageStack {
     /// Optional acquisition facts for the point-spread model of the sizing tools (root
     /// attributes of the same names; absent in files written before they existed).
     AcquisitionFacts acquisition;
+    /// True when x_m and z_m hold pixel indices, not metres (an uncalibrated stored frame, e.g.
+    /// a DICOM image without a usable ultrasound region): root attribute axes_unit = "px".
+    bool axes_in_pixels = false;
     /// Frame i (0-based) as its own Frame; throws std::out_of_range when i >= frames.
     Frame frame(size_t i) const;
 };
@@ -82,6 +85,8 @@ public:
     void setScanPositions(const std::vector<double>& scan_position_m);
     /// Acquisition facts for the sizing tools' point-spread model, written as root attributes.
     void setAcquisition(const AcquisitionFacts& facts);
+    /// Marks the axes as pixel indices (root attribute axes_unit = "px"); default metres.
+    void setAxesInPixels(bool px);
     size_t frames() const { return frames_; }
     /// Writes the remaining attributes, closes the file and renames it into place.
     void finish();

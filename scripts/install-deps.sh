@@ -9,7 +9,8 @@ PACKAGES=(
   libhdf5-dev libfftw3-dev libeigen3-dev nlohmann-json3-dev
   libopencv-dev libpng-dev libssl-dev
   libgtest-dev libgmock-dev googletest libbenchmark-dev
-  python3 python3-numpy python3-scipy python3-h5py python3-sklearn python3-statsmodels
+  libdcmtk-dev dcmtk
+  python3 python3-numpy python3-scipy python3-h5py python3-sklearn python3-statsmodels python3-pydicom
   xvfb xauth time poppler-utils
 )
 missing=()

@@ -4,7 +4,7 @@
 # (1480 x 920). Builds nothing.
 #   scripts/screenshots.sh [BUILD_DIR] [SAMPLES_DIR]
 # BUILD_DIR defaults to build; SAMPLES_DIR to BUILD_DIR/samples (make them with
-# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,weld-export-light,report-page,dac,practice-result,practice-progress}.png.
+# `cmake --build BUILD_DIR --target samples`). Writes docs/screenshots/{weld,phantom,weld-export,weld-export-light,report-page,dac,practice-result,practice-progress,dicom}.png.
 # umbra writes each PNG under a temporary name and renames it; this script then checks that every
 # PNG decodes completely (Debian's python3 + zlib) and fails loudly if one does not.
 set -euo pipefail
@@ -79,7 +79,26 @@ if [ -f "$samples/practice_set_c.h5" ]; then
 else
   echo "screenshots: $samples/practice_set_c.h5 missing; practice screenshots skipped" >&2
 fi
-for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png "$out"/practice-result.png "$out"/practice-progress.png; do
+# A stored DICOM frame: the phantom reconstructed, exported as DICOM and reopened, with a caliper
+# across the 6 mm cyst at (-8, 25) mm, i.e. from x = -11 to -5 mm at 25 mm depth (pixels from the
+# exported file's ultrasound region, read with pydicom).
+if [ -f "$samples/phantom_p2.h5" ]; then
+  tmpd=$(mktemp -d)
+  "$build/bin/umbra-cli" reconstruct "$samples/phantom_p2.h5" -o "$tmpd/phantom.h5" >/dev/null
+  "$build/bin/umbra-cli" export-dicom "$tmpd/phantom.h5" -o "$tmpd/phantom_p2.dcm" --capture "$samples/phantom_p2.h5" \
+      --part "Phantom P-2" --quiet
+  cal=$(/usr/bin/python3 - "$tmpd/phantom_p2.dcm" <<'PY'
+import sys, pydicom
+r = pydicom.dcmread(sys.argv[1]).SequenceOfUltrasoundRegions[0]
+col = lambda x_mm: round((x_mm / 10 - r.ReferencePixelPhysicalValueX) / r.PhysicalDeltaX)
+row = round((2.5 - r.ReferencePixelPhysicalValueY) / r.PhysicalDeltaY)
+print(f"{col(-11)},{row},{col(-5)},{row}")
+PY
+)
+  run "$tmpd/phantom_p2.dcm" --stored-caliper "$cal" --screenshot "$out/dicom.png"
+  rm -rf "$tmpd"
+fi
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png "$out"/practice-result.png "$out"/practice-progress.png "$out"/dicom.png; do
   [ -f "$f" ] || continue
   /usr/bin/python3 - "$f" <<'PY'
 import struct, sys, zlib

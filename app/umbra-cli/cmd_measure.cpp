@@ -86,6 +86,11 @@ int cmdMeasure(const Argv& argv) {
 
     const std::string path = a.positional()[0];
     const core::ImageStack img = core::readImageFile(path);
+    if (img.axes_in_pixels)
+        throw core::InputError(path, "/@axes_unit", "axes are in pixels (uncalibrated stored frame): sizing in mm is not possible");
+    if (img.recipe_json.find("\"source\": \"dicom\"") != std::string::npos)
+        throw core::InputError(path, "/@recipe_json", "holds display grey levels imported from DICOM, not a linear envelope: "
+                                                     "the dB-drop sizing tools need a reconstructed image");
     size_t frame = 0;
     if (auto f = a.value("--frame")) frame = size_t(parseWholeNumber("--frame", *f, 0, img.frames ? img.frames - 1 : 0));
     // The box must hold at least one pixel centre of the image.

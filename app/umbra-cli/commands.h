@@ -19,6 +19,8 @@ int cmdExportFindings(const Argv& args);
 int cmdReport(const Argv& args);
 int cmdBlindCopy(const Argv& args);
 int cmdAgreement(const Argv& args);
+int cmdImport(const Argv& args);
+int cmdExportDicom(const Argv& args);
 
 struct Command {
     const char* name;

@@ -12,7 +12,7 @@ namespace umbra::cli {
 const std::vector<Command>& commands() {
     static const std::vector<Command> table = {
         {"info", "print a readable summary of a capture", cmdInfo},
-        {"validate", "check a capture against format v1; exit 2 listing each problem", cmdValidate},
+        {"validate", "check a capture against format v1 (or a DICOM image by content); exit 2 listing each problem", cmdValidate},
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
@@ -21,6 +21,8 @@ const std::vector<Command>& commands() {
         {"export-findings", "write a case's findings and measurements as a CSV or JSON table", cmdExportFindings},
         {"blind-copy", "copy a case for a blind second reading (captures and recipes only)", cmdBlindCopy},
         {"agreement", "inter-reader agreement of two or more cases on the same captures (kappa, Bland-Altman)", cmdAgreement},
+        {"import", "read a DICOM ultrasound image (stored frames) into an image file", cmdImport},
+        {"export-dicom", "write an image file's frames as a DICOM ultrasound (multi-frame) image", cmdExportDicom},
     };
     return table;
 }

@@ -10,6 +10,7 @@
 //             [--report FILE.pdf]
 #include <QApplication>
 #include <QCommandLineParser>
+#include <QFile>
 #include <QFileInfo>
 #include <QInputDialog>
 #include <QMessageBox>
@@ -23,6 +24,7 @@
 #include "core/measurement.h"
 #include "ui/main/main_window.h"
 #include "ui/practice/practice_panel.h"
+#include "ui/stored/stored_image_window.h"
 
 int main(int argc, char** argv) {
     QApplication app(argc, argv);
@@ -70,6 +72,9 @@ int main(int argc, char** argv) {
     for (const auto& o : {demo, demoCase, timings, shot, annotate, ellipse, demoRef, demoTcg, capture, exportOpt, frame, set, timeout, themeOpt, reportOpt,
                           practice, trainee, demoMeasure, demoSubmit, progressShot})
         cl.addOption(o);
+    QCommandLineOption storedCaliper("stored-caliper", "With --screenshot of a DICOM image: caliper from column C0, row R0 to C1, R1 (pixels).",
+                                     "C0,R0,C1,R1");
+    cl.addOption(storedCaliper);
     cl.process(app);
 
     umbra::ui::MainWindow::Options opt;
@@ -171,6 +176,27 @@ int main(int argc, char** argv) {
         t->start(100);
     }
 
+    // A stored DICOM image opens in its own window: with --screenshot, place the caliper given by
+    // --stored-caliper (pixel columns and rows) and grab that window.
+    if (screenshot && ok) {
+        if (auto* sw = w.findChild<umbra::ui::StoredImageWindow*>()) {
+            const QStringList c = cl.value(storedCaliper).split(',', Qt::SkipEmptyParts);
+            if (c.size() == 4) sw->setCaliper(c[0].toDouble(), c[1].toDouble(), c[2].toDouble(), c[3].toDouble());
+            if (cl.isSet(frame)) sw->setCurrentFrame(size_t(cl.value(frame).toULongLong()));
+            const QString out = cl.value(shot);
+            QTimer::singleShot(600, sw, [sw, out] {
+                const QString tmp = out + ".part";
+                bool saved = sw->grab().save(tmp, "PNG");
+                if (saved) {
+                    QFile::remove(out);
+                    saved = QFile::rename(tmp, out);
+                }
+                std::fprintf(stderr, "umbra: screenshot %s %s\n", out.toLocal8Bit().constData(), saved ? "written" : "FAILED");
+                QApplication::exit(saved ? 0 : 3);
+            });
+            return QApplication::exec();
+        }
+    }
     if (screenshot) {
         if (!ok) return 1;
         const QString out = cl.value(shot);

@@ -46,6 +46,7 @@
 
 #include "core/blind_copy.h"
 #include "core/case_file.h"
+#include "core/dicom_image.h"
 #include "core/error.h"
 #include "core/practice.h"
 #include "ui/agreement/agreement_dialog.h"
@@ -57,8 +58,10 @@
 #include "ui/findings/findings_pane.h"
 #include "ui/main/findings_dock.h"
 #include "ui/recipe/recipe_panel.h"
+#include "ui/stored/stored_image_window.h"
 #include "ui/topview/top_view.h"
 #include "ui/trace/trace_view.h"
+#include "ui/viewer/cine_controls.h"
 #include "ui/viewer/image_view.h"
 
 namespace umbra::ui {
@@ -219,7 +222,7 @@ void MainWindow::buildDocks() {
 
 void MainWindow::buildActions() {
     QMenu* file = menuBar()->addMenu(tr("&File"));
-    QAction* a = file->addAction(tr("&Open capture or case…"), this, &MainWindow::open);
+    QAction* a = file->addAction(tr("&Open capture, case or DICOM image…"), this, &MainWindow::open);
     a->setShortcut(QKeySequence::Open);
     a = file->addAction(tr("Add capture to case…"), this, [this] {
         const QString p = QFileDialog::getOpenFileName(this, tr("Add capture"), caseFolder(), tr("Captures (*.h5 *.hdf5)"));
@@ -255,6 +258,7 @@ void MainWindow::buildActions() {
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_E));
     file->addAction(tr("Report &header…"), this, &MainWindow::reportHeaderDialog);
     file->addAction(tr("&Report…"), this, &MainWindow::reportDialog);
+    file->addAction(tr("Export &DICOM…"), this, &MainWindow::exportDicomDialog);
     file->addSeparator();
     a = file->addAction(tr("&Quit"), this, &QWidget::close);
     a->setShortcut(QKeySequence::Quit);
@@ -466,6 +470,13 @@ void MainWindow::buildActions() {
     connect(frame_slider_, &QSlider::valueChanged, this, [this](int v) {
         if (!updating_controls_) ctl_->setCurrentFrame(static_cast<size_t>(v));
     });
+    cine_ = new CineControls;
+    tb->addWidget(cine_);
+    // Playback waits for each frame to be beamformed and shown before asking for the next.
+    cine_->setReadyCheck([this] {
+        return ctl_->hasImage() && !ctl_->isBusy() && ctl_->envelope()->frame_index == ctl_->currentFrame();
+    });
+    connect(cine_, &CineControls::frameRequested, this, [this](qulonglong f) { ctl_->setCurrentFrame(static_cast<size_t>(f)); });
 }
 
 void MainWindow::buildStatusBar() {
@@ -514,6 +525,20 @@ void MainWindow::onCaptureChanged() {
     capture_combo_->setEnabled(doc.captures.size() > 1);
     updating_controls_ = false;
     top_dock_->setVisible(ctl_->isEncodedScan());
+    // Playback rate: the capture's frame times when it records them, else 10 frames/s.
+    {
+        const auto& scan = ctl_->header().scan;
+        double rate = 10;
+        QString source = tr("default");
+        if (ctl_->hasCapture() && scan && scan->time_s.size() > 1) {
+            const double dt = (scan->time_s.back() - scan->time_s.front()) / double(scan->time_s.size() - 1);
+            if (dt > 0 && std::isfinite(dt)) {
+                rate = 1.0 / dt;
+                source = tr("from the capture's frame times");
+            }
+        }
+        cine_->setFrameRate(rate, source);
+    }
     updateFrameControls();
     updateTitle();
 }
@@ -528,6 +553,8 @@ void MainWindow::updateFrameControls() {
     const QString fl = ctl_->frameLabel(ctl_->currentFrame());
     if (!fl.isEmpty()) label += "   " + fl;
     frame_label_->setText(label);
+    cine_->setFrameCount(n);
+    cine_->setCurrentFrame(ctl_->currentFrame());
     updating_controls_ = false;
 }
 
@@ -568,7 +595,8 @@ bool MainWindow::maybeSave() {
 
 void MainWindow::open() {
     const QString p = QFileDialog::getOpenFileName(this, tr("Open capture or case"), caseFolder(),
-                                                   tr("Captures and cases (*.h5 *.hdf5 *.umbracase);;All files (*)"));
+                                                   tr("Captures, cases and DICOM images (*.h5 *.hdf5 *.umbracase *.dcm *.dicom);;"
+                                                      "DICOM ultrasound images (*.dcm *.dicom);;All files (*)"));
     if (!p.isEmpty()) openPath(p);
 }
 
@@ -650,6 +678,10 @@ void MainWindow::leavePractice() {
 }
 
 bool MainWindow::openPath(const QString& path) {
+    // A stored DICOM image opens in its own window; the case stays as it is.
+    if (core::looksLikeDicom(path.toStdString()) || path.endsWith(".dcm", Qt::CaseInsensitive) ||
+        path.endsWith(".dicom", Qt::CaseInsensitive))
+        return openStoredImage(path) != nullptr;
     if (!maybeSave()) return false;
     leavePractice();  // another capture or case: the practice attempt ends (a submitted one is logged)
     try {
@@ -875,6 +907,51 @@ void MainWindow::reportHeaderDialog() {
     if (d.exec() != QDialog::Accepted) return;
     for (size_t i = 0; i < fields.size(); ++i) *fields[i].second = edits[i]->text().trimmed().toStdString();
     ctl_->setReportHeader(h);
+}
+
+void MainWindow::exportDicomDialog() {
+    if (!ctl_->hasImage()) return;
+    QString p = QFileDialog::getSaveFileName(this, tr("Export DICOM"), inCaseFolder(ctl_->displayName() + ".dcm"),
+                                             tr("DICOM images (*.dcm)"));
+    if (p.isEmpty()) return;
+    if (!p.endsWith(".dcm", Qt::CaseInsensitive)) p += ".dcm";
+    exportDicom(p);
+}
+
+bool MainWindow::exportDicom(const QString& path) {
+    const core::Frame* env = ctl_->envelope();
+    const auto& db = ctl_->db();
+    if (!env || db.size() != env->nx() * env->nz()) return false;
+    // Grey levels of the display: 0 at the bottom of the dynamic range, 255 at 0 dB.
+    const double range = ctl_->dynamicRangeDb();
+    std::vector<uint8_t> px(db.size());
+    for (size_t i = 0; i < db.size(); ++i) px[i] = uint8_t(std::lround(std::clamp(255.0 * (1.0 + double(db[i]) / range), 0.0, 255.0)));
+    core::DicomExportInfo info;
+    info.title = ctl_->displayName().toStdString();
+    const auto& h = ctl_->header();
+    if (auto it = h.provenance.find("part"); it != h.provenance.end()) info.part_id = it->second;
+    info.capture_sha256 = env->capture_sha256;
+    info.recipe_json = ctl_->recipe().toJson(-1);
+    info.synthetic = h.isSynthetic();
+    try {
+        core::writeDicomFile(path.toStdString(), env->x_m, env->z_m, 1, 1, px, info);
+    } catch (const std::exception& e) {
+        showError(tr("Cannot export DICOM"), QString::fromStdString(e.what()));
+        return false;
+    }
+    statusBar()->showMessage(tr("Frame %1 written as DICOM to %2").arg(ctl_->currentFrame() + 1).arg(path), 8000);
+    return true;
+}
+
+StoredImageWindow* MainWindow::openStoredImage(const QString& path) {
+    try {
+        auto* w = new StoredImageWindow(path, this);
+        w->show();
+        return w;
+    } catch (const std::exception& e) {
+        showError(tr("Cannot open"), QString::fromStdString(e.what()));
+        return nullptr;
+    }
 }
 
 void MainWindow::loadRecipe() {

@@ -25,7 +25,9 @@ class QToolButton;
 namespace umbra::ui {
 
 class CaseController;
+class CineControls;
 class CurvePanel;
+class StoredImageWindow;
 class ImageView;
 class PracticePanel;
 class RecipePanel;
@@ -82,6 +84,13 @@ public:
     static QString practiceFolder();
     /// Writes a blind copy of the open case (core::blindCopy) to `path`. False after telling the user.
     bool makeBlindCopy(const QString& path);
+    /// Opens a stored image (DICOM ultrasound) in its own window; nullptr (after telling the
+    /// user) when it cannot be read. The case is not touched.
+    StoredImageWindow* openStoredImage(const QString& path);
+    /// Writes the current frame as displayed (grey levels of the display chain) as a DICOM
+    /// Ultrasound Image with its region calibration; false (after telling the user) on error.
+    bool exportDicom(const QString& path);
+    CineControls* cine() const { return cine_; }
     /// Writes the annotated PNG of the current view.
     bool exportImage(const QString& path, int width_px, Theme theme = Theme::Dark);
     /// Writes the PDF report of the case as it is now (ui/report). False (and a message) on error.
@@ -118,6 +127,7 @@ private:
     bool saveAs();
     void exportDialog();
     void reportDialog();
+    void exportDicomDialog();
     void relocate();
     void loadRecipe();
     void saveRecipe();
@@ -156,6 +166,7 @@ private:
     QAction* redo_ = nullptr;
     QSlider* frame_slider_ = nullptr;
     QLabel* frame_label_ = nullptr;
+    CineControls* cine_ = nullptr;
     QComboBox* capture_combo_ = nullptr;
     QLabel* readout_ = nullptr;
     QLabel* timing_ = nullptr;

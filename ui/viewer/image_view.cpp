@@ -168,7 +168,7 @@ Scene ImageView::scene() const {
     if (!ctl_->captureProblem().isEmpty())
         s.message = ctl_->captureProblem() + tr("\n\nFile → Relocate capture… to point the case at it.");
     else if (!ctl_->hasCapture())
-        s.message = tr("Open a capture (.h5) or a case (.umbracase) with File → Open (Ctrl+O), or drop the file here.");
+        s.message = tr("Open a capture (.h5), a case (.umbracase) or a DICOM image (.dcm) with File → Open (Ctrl+O), or drop the file here.");
     else
         s.message = tr("Reconstructing…");
     return s;
