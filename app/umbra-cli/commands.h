@@ -15,6 +15,7 @@ int cmdSimulate(const Argv& args);
 int cmdReconstruct(const Argv& args);
 int cmdBatch(const Argv& args);
 int cmdMeasure(const Argv& args);
+int cmdCalibrate(const Argv& args);
 
 struct Command {
     const char* name;

@@ -17,6 +17,7 @@ const std::vector<Command>& commands() {
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
         {"measure", "size an indication in an image file (drop, tips, peak, scan length) with its uncertainty", cmdMeasure},
+        {"calibrate", "speed of sound from a back wall or two holes, fixed delay, weak or dead elements", cmdCalibrate},
     };
     return table;
 }

@@ -14,6 +14,7 @@
 
 #include "core/drop_sizing.h"
 #include "core/error.h"
+#include "reconstruction/calibration.h"
 #include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
@@ -976,6 +977,89 @@ void CaseController::editCurve(const std::optional<core::DistanceAmplitudeCurve>
         what, doc_.curve, c, [this](const std::optional<core::DistanceAmplitudeCurve>& v) { setCurve(v); }));
 }
 
+namespace {
+using CalibrationLines = std::pair<std::vector<std::string>, std::vector<std::string>>;  // speed, elements
+}
+
+std::optional<core::MeasuredValue> CaseController::calibrateSpeed(double thickness_mm, double tol_mm, QString* why) {
+    if (!reader_) {
+        if (why) *why = tr("Open a capture first.");
+        return std::nullopt;
+    }
+    try {
+        const auto c = recon::speedFromBackWall(*reader_, thickness_mm * 1e-3, tol_mm * 1e-3, frame_);
+        std::vector<std::string> lines = recon::calibrationLines(c);
+        lines.front() += " (frame " + std::to_string(frame_ + 1) + ", plate " +
+                         core::formatWithUncertainty(thickness_mm, tol_mm, "mm") + ")";
+        const CalibrationLines before{active().speed_calibration, active().element_health};
+        const CalibrationLines after{lines, before.second};
+        undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the speed of sound"), before, after,
+                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                          active().speed_calibration = v.first;
+                                                          active().element_health = v.second;
+                                                          emit caseChanged();
+                                                      })));
+        return c.speed;
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromUtf8(e.what());
+        return std::nullopt;
+    }
+}
+
+std::optional<std::vector<int>> CaseController::checkElements(QString* why) {
+    if (!reader_) {
+        if (why) *why = tr("Open a capture first.");
+        return std::nullopt;
+    }
+    try {
+        const auto h = recon::elementHealth(*reader_, frame_);
+        std::vector<std::string> lines = recon::healthLines(h);
+        lines.front() += " (frame " + std::to_string(frame_ + 1) + ")";
+        const CalibrationLines before{active().speed_calibration, active().element_health};
+        const CalibrationLines after{before.first, lines};
+        undo_.push(new ValueCommand<CalibrationLines>(tr("Check the elements"), before, after,
+                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                          active().speed_calibration = v.first;
+                                                          active().element_health = v.second;
+                                                          emit caseChanged();
+                                                      })));
+        return h.flagged();
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromUtf8(e.what());
+        return std::nullopt;
+    }
+}
+
+std::vector<std::string> CaseController::calibrationLines() const {
+    const core::CaseCapture* c = activeOrNull();
+    if (!c) return {};
+    std::vector<std::string> out = c->speed_calibration;
+    out.insert(out.end(), c->element_health.begin(), c->element_health.end());
+    return out;
+}
+
+void CaseController::editWeld(const std::optional<core::WeldGeometry>& w, const QString& what) {
+    if (w) core::checkWeld(*w);  // throws SettingError before anything changes
+    if (w == doc_.weld) return;
+    undo_.push(new ValueCommand<std::optional<core::WeldGeometry>>(
+        what, doc_.weld, w, [this](const std::optional<core::WeldGeometry>& v) { setWeld(v); }));
+}
+
+void CaseController::setWeld(const std::optional<core::WeldGeometry>& w) {
+    doc_.weld = w;
+    emit weldChanged();
+}
+
+std::vector<core::WeldPolyline> CaseController::weldOverlay() const {
+    if (!doc_.weld) return {};
+    double x0 = doc_.weld->centre_x_mm - 50, x1 = doc_.weld->centre_x_mm + 50;
+    if (envelope_ && envelope_->nx() > 1) {
+        x0 = std::min(x0, envelope_->x_m.front() * 1e3);
+        x1 = std::max(x1, envelope_->x_m.back() * 1e3);
+    }
+    return core::weldOverlay(*doc_.weld, x0, x1);
+}
+
 void CaseController::setCurve(const std::optional<core::DistanceAmplitudeCurve>& c) {
     doc_.curve = c;
     emit curveChanged();
@@ -1325,6 +1409,8 @@ QString CaseController::techniqueText() const {
                      .arg(envelope_->z_m.back() * 1e3, 0, 'f', 1)
                      .arg(fidelity_db_, 0, 'f', 2);
     lines << tr("TCG: %1").arg(tgcText());
+    for (const auto& l : calibrationLines()) lines << QString::fromStdString(l);
+    if (doc_.weld) lines << QString::fromStdString(core::weldSummary(*doc_.weld));
     if (h.isSynthetic()) lines << tr("Data: synthetic demonstration data (simulated capture)");
     return lines.join('\n');
 }

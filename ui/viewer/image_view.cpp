@@ -41,6 +41,8 @@ ImageView::ImageView(CaseController* controller, QWidget* parent) : QWidget(pare
     connect(ctl_, &CaseController::measurementsChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::selectionChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::findingsChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::weldChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::caseChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::captureChanged, this, [this] {
         last_extent_ = QRectF();
         pending_view_ = ctl_->viewState();
@@ -161,6 +163,7 @@ Scene ImageView::scene() const {
                 s.quantities[m.id] = ctl_->quantities(m);
             }
         }
+    if (show_weld_) s.weld = ctl_->weldOverlay();
     s.uncertainty = ctl_->uncertaintyModel();
     s.selected = ctl_->selectedMeasurement();
     for (const auto& f : ctl_->findings())
@@ -179,6 +182,11 @@ void ImageView::paintEvent(QPaintEvent*) {
     if (vt_.viewport() != imageArea(QRectF(rect()), style_)) updateLayout();
     const Scene s = scene();
     paintScene(p, QRectF(rect()), vt_, s, style_);
+}
+
+void ImageView::setWeldVisible(bool on) {
+    show_weld_ = on;
+    update();
 }
 
 std::optional<float> ImageView::dbAt(const QPointF& mm) const {

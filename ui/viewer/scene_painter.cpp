@@ -295,6 +295,37 @@ void drawColourBar(QPainter& p, const QRectF& bar, const Scene& sc, const SceneS
 
 }  // namespace
 
+QPen weldPen(const core::WeldPolyline& l, double k) {
+    QColor c;
+    switch (l.kind) {
+    case core::WeldLineKind::FusionFace: c = QColor(120, 235, 200); break;
+    case core::WeldLineKind::Cap:
+    case core::WeldLineKind::Root: c = QColor(240, 215, 120); break;
+    case core::WeldLineKind::BackWall:
+    case core::WeldLineKind::Surface: c = QColor(225, 228, 235); break;
+    }
+    c.setAlpha(l.skip == 0 ? 230 : 150);
+    QPen pen(c, (l.skip == 0 ? 1.4 : 1.1) * k);
+    pen.setCosmetic(false);
+    if (l.skip > 0) pen.setStyle(Qt::DashLine);
+    if (l.kind == core::WeldLineKind::BackWall || l.kind == core::WeldLineKind::Surface) pen.setStyle(Qt::DashDotLine);
+    return pen;
+}
+
+namespace {
+void drawWeld(QPainter& p, const ViewTransform& vt, const std::vector<core::WeldPolyline>& lines, double k) {
+    p.save();
+    p.setBrush(Qt::NoBrush);
+    for (const auto& l : lines) {
+        QPolygonF poly;
+        for (const auto& pt : l.points) poly << vt.toPixel(QPointF(pt.x_mm, pt.z_mm));
+        p.setPen(weldPen(l, k));
+        p.drawPolyline(poly);
+    }
+    p.restore();
+}
+}  // namespace
+
 void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const Scene& sc, const SceneStyle& st) {
     const double k = st.scale;
     p.save();
@@ -322,6 +353,7 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
     p.fillRect(area, QColor(8, 9, 12));
     p.setRenderHint(QPainter::SmoothPixmapTransform, vt.pixelsPerMm() * sc.extent_mm.width() / sc.image->width() < 6);
     p.drawImage(img, *sc.image);
+    if (!sc.weld.empty()) drawWeld(p, vt, sc.weld, k);
     for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, k);
     p.restore();
 

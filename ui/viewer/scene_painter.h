@@ -17,6 +17,7 @@
 
 #include "core/measurement.h"
 #include "core/sizing.h"
+#include "core/weld_geometry.h"
 #include "ui/viewer/view_transform.h"
 
 namespace umbra::ui {
@@ -35,6 +36,7 @@ struct Scene {
     /// Quantities per measurement id when they need the image (−6 dB sizing); else evaluate().
     std::map<std::string, std::vector<core::Quantity>> quantities;
     std::map<std::string, core::SizingResult> sizings;  ///< image sizing results (drop edges, tips) by measurement id
+    std::vector<core::WeldPolyline> weld;               ///< weld overlay (specimen frame, mm); empty = none
 };
 
 /// Layout and look of one rendering.
@@ -61,6 +63,8 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& view, con
 /// `q`: the measurement's quantities when known (−6 dB sizing), else core::evaluate is used.
 QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u,
                          const std::vector<core::Quantity>* q = nullptr);
+/// Pen of a weld overlay line: fusion faces, cap/root and plate boundaries apart; skips dashed.
+QPen weldPen(const core::WeldPolyline& l, double scale);
 /// Colour of a measurement kind on the image.
 QColor measurementColour(core::MeasurementKind kind);
 /// "Nice" tick step (1, 2 or 5 × 10^n) for about `count` ticks over `span`.
