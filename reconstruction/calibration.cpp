@@ -161,8 +161,10 @@ EchoTime flatEcho(const Envelopes& E, double t0, double t1, const std::string& p
     return e;
 }
 
-// Hole echo: times of the elements about the strongest one, hyperbola vertex.
-EchoTime holeEcho(const PulseEcho& pe, const Envelopes& E, double t0, double t1, const std::string& what) {
+// Hole echo: times of the elements about the strongest one, hyperbola vertex. The strongest
+// element's echo is searched for in [t0, t1]; its neighbours' only where the hyperbola through
+// it can put theirs, so that other reflectors' echoes do not enter the fit.
+EchoTime holeEcho(const PulseEcho& pe, const Envelopes& E, double t0, double t1, double c_nominal, const std::string& what) {
     std::vector<Peak> peaks;
     size_t best = 0;
     for (size_t k = 0; k < E.env.size(); ++k) {
@@ -171,14 +173,18 @@ EchoTime holeEcho(const PulseEcho& pe, const Envelopes& E, double t0, double t1,
     }
     if (!peaks[best].found)
         throw core::InputError(pe.cap.path(), "/data/rf", "no " + what + " echo (12 dB above the noise) between " + fmt(t0 * 1e6, 2) + " and " + fmt(t1 * 1e6, 2) + " µs");
+    const double pitch = std::max(pe.h.array.pitch_m(), 1e-6), reach = 4.5 * pitch;
+    const double tb = peaks[best].time_s, zb = tb * c_nominal / 2, period = 1 / std::max(pe.h.array.centre_frequency_hz, 1.0);
+    const double rise = 2 * (std::hypot(zb, reach) - zb) / c_nominal;  // largest hyperbola rise over the fit's reach
     std::vector<double> x, t2;
     const double xb = pe.h.array.element_position_m[size_t(pe.element[best])][0];
     for (size_t k = 0; k < peaks.size(); ++k) {
         const double xk = pe.h.array.element_position_m[size_t(pe.element[k])][0];
-        if (!peaks[k].found || peaks[k].amplitude < peaks[best].amplitude / 2) continue;  // within 6 dB of the strongest
-        if (std::abs(xk - xb) > 4.5 * std::max(pe.h.array.pitch_m(), 1e-6)) continue;
+        if (std::abs(xk - xb) > reach) continue;
+        const Peak p = k == best ? peaks[k] : peakIn(E.env[k], E.start_s[k], E.fs_up, tb - period, tb + 1.2 * rise + period, E.floor[k]);
+        if (!p.found || p.amplitude < peaks[best].amplitude / 2) continue;  // within 6 dB of the strongest
         x.push_back(xk - xb);
-        t2.push_back(peaks[k].time_s * peaks[k].time_s);
+        t2.push_back(p.time_s * p.time_s);
     }
     EchoTime e;
     e.amplitude = peaks[best].amplitude;
@@ -209,14 +215,15 @@ EchoTime holeEcho(const PulseEcho& pe, const Envelopes& E, double t0, double t1,
     return e;
 }
 
+// Largest side-drilled hole radius the search allows for (reference blocks: Ø1–3 mm, common practice).
+constexpr double kMaxHoleRadius = 2e-3;
+
 void speedWindow(const core::CaptureHeader& h, double& c_min, double& c_max) {
     const double c = h.medium.speed_of_sound_m_s;
     if (!(c_min > 0)) c_min = c > 0 ? 0.6 * c : 1000;
     if (!(c_max > 0)) c_max = c > 0 ? 1.6 * c : 10000;
     if (!(c_max > c_min)) throw core::SettingError("speed search range: the largest speed must exceed the smallest");
 }
-
-std::string mm(double m, double tol) { return core::formatWithUncertainty(m * 1e3, tol * 1e3, "mm"); }
 
 }  // namespace
 
@@ -286,16 +293,17 @@ SpeedCalibration speedFromHoles(const core::CaptureReader& capture, double z1, d
     double c_min = 0, c_max = 0;
     const double c_cap = pe.h.medium.speed_of_sound_m_s;
     if (c_cap > 0) {
-        c_min = 0.8 * c_cap;  // narrower than for a back wall: the holes must not share a window
-        c_max = 1.25 * c_cap;
+        c_min = 0.9 * c_cap;  // narrower than for a back wall: the holes' windows must not hold each other's echoes
+        c_max = 1.1 * c_cap;
     }
     speedWindow(pe.h, c_min, c_max);
+    const double c_nominal = c_cap > 0 ? c_cap : std::sqrt(c_min * c_max);
     const Envelopes E = envelopes(pe, frame);
     auto echo = [&](double z, const std::string& what) {
-        // The echo comes from the hole's near surface, above its centre: allow 20 % shallower.
-        const double lo = 0.8 * 2 * z / c_max, hi = std::min(2 * z / c_min, E.record_end_s);
+        // The echo comes from the hole's near surface, above its centre: allow kMaxHoleRadius.
+        const double lo = 2 * std::max(0.0, z - kMaxHoleRadius) / c_max, hi = std::min(2 * z / c_min, E.record_end_s);
         if (hi <= lo) throw core::InputError(capture.path(), "/data/rf", "the record ends before the " + what + " could echo");
-        return holeEcho(pe, E, lo, hi, what);
+        return holeEcho(pe, E, lo, hi, c_nominal, what);
     };
     const EchoTime e1 = echo(z1, "hole at " + fmt(z1 * 1e3, 2) + " mm");
     const EchoTime e2 = echo(z2, "hole at " + fmt(z2 * 1e3, 2) + " mm");

@@ -103,7 +103,10 @@ std::string elementListText(const std::vector<int>& zb) {
         while (j + 1 < v.size() && v[j + 1] == v[j] + 1) ++j;
         if (!s.empty()) s += ", ";
         s += std::to_string(v[i] + 1);
-        if (j > i) s += "-" + std::to_string(v[j] + 1);
+        if (j > i) {
+            s += '-';
+            s += std::to_string(v[j] + 1);
+        }
         i = j + 1;
     }
     return s;

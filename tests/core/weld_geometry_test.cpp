@@ -61,7 +61,8 @@ TEST(weld_geometry_test, root_face_is_a_vertical_land) {
     WeldGeometry w;
     w.root_face_mm = 2;
     w.centre_x_mm = 5;
-    const auto& right = line(weldPolylines(w, -30, 30), WeldLineKind::FusionFace, 1);
+    const auto ls = weldPolylines(w, -30, 30);
+    const auto& right = line(ls, WeldLineKind::FusionFace, 1);
     EXPECT_NEAR(xAt(right, 0), 5 + 11.392305, 1e-6);
     EXPECT_NEAR(xAt(right, 18), 6.0, 1e-12);
     EXPECT_NEAR(xAt(right, 19), 6.0, 1e-12);
@@ -81,7 +82,8 @@ TEST(weld_geometry_test, double_v_is_symmetric_about_mid_thickness) {
     EXPECT_NEAR(grooveWidthAt(w, 4.5), 2 * 4.5 * tand(30), 1e-9);
     EXPECT_NEAR(grooveWidthAt(w, 15.5), 2 * 4.5 * tand(30), 1e-9);
     // The back cap defaults to the groove width at the back wall.
-    const auto& root = line(weldPolylines(w, -30, 30), WeldLineKind::Root);
+    const auto ls = weldPolylines(w, -30, 30);
+    const auto& root = line(ls, WeldLineKind::Root);
     EXPECT_NEAR(root.points.front().x_mm, -5.196152, 1e-6);
     EXPECT_NEAR(root.points.back().x_mm, 5.196152, 1e-6);
 }
@@ -103,7 +105,8 @@ TEST(weld_geometry_test, u_groove_radius_then_straight_face) {
     EXPECT_NEAR(grooveWidthAt(w, 15.5) / 2, 4.330127, 1e-6);
     EXPECT_NEAR(grooveWidthAt(w, 18) / 2, 0.0, 1e-9);
     // Every polyline point of the arc lies on the circle (5° sampling).
-    const auto& right = line(weldPolylines(w, -30, 30), WeldLineKind::FusionFace, 1);
+    const auto ls = weldPolylines(w, -30, 30);
+    const auto& right = line(ls, WeldLineKind::FusionFace, 1);
     int on_arc = 0;
     for (const auto& p : right.points)
         if (p.z_mm > 13.868 && p.z_mm < 18 - 1e-9) {
