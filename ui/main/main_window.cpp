@@ -918,6 +918,16 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
                       "Press E and drag from its centre to its edge to measure it with an ellipse.");
         }
         ctl_->setCaseText(t);
+        if (weld) {
+            // The coupon's weld as its scene describes it: single V in 20 mm plate, 30° bevels,
+            // 2 mm root gap, no root face, ground flush, centred at x = 0.
+            core::WeldGeometry g;
+            g.shape = core::WeldShape::V;
+            g.thickness_mm = 20;
+            g.bevel_angle_deg = 30;
+            g.root_gap_mm = 2;
+            ctl_->setWeld(g);
+        }
     } catch (const std::exception& e) {
         showError(tr("Cannot open the demo"), QString::fromStdString(e.what()));
         return false;
