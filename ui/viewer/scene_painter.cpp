@@ -353,7 +353,12 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
     p.fillRect(area, QColor(8, 9, 12));
     p.setRenderHint(QPainter::SmoothPixmapTransform, vt.pixelsPerMm() * sc.extent_mm.width() / sc.image->width() < 6);
     p.drawImage(img, *sc.image);
-    if (!sc.weld.empty()) drawWeld(p, vt, sc.weld, k);
+    if (!sc.weld.empty()) {
+        p.save();
+        p.setClipRect(area.intersected(img));  // only over the image: no lines over empty margins
+        drawWeld(p, vt, sc.weld, k);
+        p.restore();
+    }
     for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, k);
     p.restore();
 
