@@ -146,6 +146,8 @@ void ImageWriter::finish() {
             for (const auto& [name, v] : opt)
                 if (*v) writeDoubleAttr(I.file.get(), name, **v);
             if (a.wedge) writeIntAttr(I.file.get(), "wedge", 1);
+            if (!a.view_mode.empty()) writeStringAttr(I.file.get(), "view_mode", a.view_mode);
+            if (!a.image_frame.empty()) writeStringAttr(I.file.get(), "image_frame", a.image_frame);
         } catch (const std::exception& e) {
             throw InputError(path_, "/", e.what());
         }
@@ -244,6 +246,13 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
     if (attrExists(f.get(), "wedge")) {
         auto w = readIntAttr(f.get(), "wedge", err);
         acq.wedge = w && *w != 0;
+    }
+    if (attrExists(f.get(), "view_mode"))
+        if (auto v = readStringAttr(f.get(), "view_mode", err)) acq.view_mode = *v;
+    if (attrExists(f.get(), "image_frame")) {
+        auto v = readStringAttr(f.get(), "image_frame", err);
+        if (!v || (*v != "array" && *v != "specimen")) throw InputError(path, "/@image_frame", "must be \"array\" or \"specimen\"");
+        acq.image_frame = *v;
     }
     img.x_m = *x;
     img.z_m = *z;

@@ -30,6 +30,8 @@ struct AcquisitionFacts {
     std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
     std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
     bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
+    std::string view_mode;    ///< view of the image, e.g. "TT-T" (attribute "view_mode"; empty = not recorded, L-L)
+    std::string image_frame;  ///< "array" or "specimen" (attribute "image_frame"; empty = not recorded, array)
     bool operator==(const AcquisitionFacts&) const = default;
 };
 

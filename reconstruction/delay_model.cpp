@@ -6,6 +6,9 @@
 
 #include "core/error.h"
 #include "reconstruction/detail/spec_helpers.h"
+#include "reconstruction/pipeline.h"
+#include "reconstruction/view_delay_model.h"
+#include "reconstruction/view_mode.h"
 
 namespace umbra::recon {
 
@@ -13,18 +16,27 @@ core::StageSpec delayModelSpec() {
     using namespace detail;
     return {"delay_model",
             "Delay model",
-            "Travel times from the array to each pixel (homogeneous medium).",
+            "Travel times from the array to each pixel (homogeneous medium, or least-time paths through the wedge and off the back wall).",
             {choiceParam("model", "Medium model", "Travel-time model: homogeneous medium at one speed of sound.", {"homogeneous"},
                          "homogeneous"),
+             choiceParam("mode", "View",
+                         "Wave types of the transmit and receive paths in the part (before and after the dash; L longitudinal, T "
+                         "shear; two letters: via the back wall).",
+                         viewModeNames(), "L-L"),
              modalRealParam("speed_of_sound_m_s", "Speed of sound",
                             "Speed of sound in the imaged medium, m/s; 0 = the capture's medium speed.", "m/s", 0, 20000, "from capture",
-                            10)}};
+                            10),
+             modalRealParam("shear_speed_m_s", "Shear speed",
+                            "Shear-wave speed in the part for T legs, m/s; 0 = the capture's medium shear speed.", "m/s", 0, 20000,
+                            "from capture", 10)}};
 }
 
 DelayModelParams delayModelParams(const core::Recipe& r) {
     DelayModelParams p;
     p.speed_of_sound_m_s = r.number("delay_model.speed_of_sound_m_s");
     p.model = r.text("delay_model.model");
+    p.mode = r.text("delay_model.mode");
+    p.shear_speed_m_s = r.number("delay_model.shear_speed_m_s");
     return p;
 }
 
@@ -78,12 +90,26 @@ double resolvedSpeed(const core::CaptureHeader& h, const core::Recipe& r) {
     return c;
 }
 
-std::unique_ptr<DelayModel> makeDelayModel(const core::CaptureHeader& h, const core::Recipe& r) {
+bool usesHomogeneousModel(const core::CaptureHeader& h, const core::Recipe& r) {
+    return !h.medium.wedge && parseViewMode(r.text("delay_model.mode")).name == "L-L";
+}
+
+std::unique_ptr<DelayModel> makeDelayModel(const core::CaptureHeader& h, const core::Recipe& r, const Grid* grid, int threads) {
     const double c = resolvedSpeed(h, r);
-    if (h.medium.wedge)
-        throw core::SettingError("delay model: the capture has a wedge (/medium/wedge); the layered model is not available yet, "
-                                 "only the homogeneous medium");
-    return std::make_unique<HomogeneousDelayModel>(c);
+    const DelayModelParams p = delayModelParams(r);
+    const ViewMode mode = parseViewMode(p.mode);
+    if (p.shear_speed_m_s < 0) throw core::SettingError("delay_model.shear_speed_m_s must not be negative (0 = from the capture)");
+    checkViewMode(h, mode, p.shear_speed_m_s);
+    if (usesHomogeneousModel(h, r)) return std::make_unique<HomogeneousDelayModel>(c);
+    ViewGeometry g = ViewGeometry::fromHeader(h, c, p.shear_speed_m_s);
+    if (!grid) throw core::SettingError("delay model: the " + mode.name + " view needs the image grid for its travel-time tables");
+    if (mode.usesBackWall() && !(grid->z_min_m <= g.thickness_m && grid->z_max_m >= 0))
+        throw core::SettingError("delay_model.mode = " + mode.name + ": no path: the image region (" + std::to_string(grid->z_min_m * 1e3) +
+                                 " to " + std::to_string(grid->z_max_m * 1e3) + " mm deep) lies outside the part (0 to " +
+                                 std::to_string(g.thickness_m * 1e3) + " mm)");
+    if (g.wedge && grid->z_max_m < 0)
+        throw core::SettingError("delay_model.mode = " + mode.name + ": no path: the image region lies above the part surface (z < 0)");
+    return std::make_unique<ViewDelayModel>(h, std::move(g), mode, *grid, threads);
 }
 
 }  // namespace umbra::recon

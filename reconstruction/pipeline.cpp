@@ -14,6 +14,8 @@
 #include "reconstruction/envelope_stage.h"
 #include "reconstruction/grid_stage.h"
 #include "reconstruction/log_compression_stage.h"
+#include "reconstruction/ray_path.h"
+#include "reconstruction/view_mode.h"
 #include "reconstruction/tgc_stage.h"
 #include "reconstruction/wavenumber_stage.h"
 
@@ -77,6 +79,25 @@ Extent autoExtent(const core::CaptureHeader& h, double c) {
         e.z0 = 0;
         if (zt < e.z1) e.z1 = zt;
     }
+    // Wedge: the specimen frame; from the element feet on the surface along the beam (towards
+    // +x_s for a positive tilt) for 2.5 x the depth range (a skip at 55 degrees reaches 2.9 x).
+    if (h.medium.wedge) {
+        ViewGeometry g;
+        g.wedge = h.medium.wedge;
+        double f0 = 1e300, f1 = -1e300;
+        for (auto& p : h.array.element_position_m) {
+            const double f = g.toSpecimen(p[0], p[2])[0];
+            f0 = std::min(f0, f);
+            f1 = std::max(f1, f);
+        }
+        if (h.array.element_position_m.empty()) f0 = f1 = 0;
+        e.z0 = 0;
+        if (h.medium.thickness_m && *h.medium.thickness_m > 0 && std::isfinite(*h.medium.thickness_m))
+            e.z1 = std::min(e.z1, kThicknessMargin * *h.medium.thickness_m);
+        const double reach = 2.5 * std::min(e.z1, h.medium.thickness_m.value_or(e.z1));
+        e.x0 = h.medium.wedge->surface_tilt_rad >= 0 ? f0 : f0 - reach;
+        e.x1 = h.medium.wedge->surface_tilt_rad >= 0 ? f1 + reach : f1;
+    }
     return e;
 }
 
@@ -99,8 +120,17 @@ double effectiveFNumber(const core::CaptureHeader& h, const DasParams& das, doub
     return std::max(das.f_number, geometric);
 }
 
-PsfWidths widthsFor(const core::CaptureHeader& h, const core::Recipe& r, double z0) {
+// Speed that sets the wavelength of the view: the shear speed when a leg is T.
+double viewSpeed(const core::CaptureHeader& h, const core::Recipe& r) {
     const double c = resolvedSpeed(h, r);
+    const ViewMode m = parseViewMode(r.text("delay_model.mode"));
+    if (!m.usesShear()) return c;
+    const double ct = viewShearSpeed(h, r.number("delay_model.shear_speed_m_s"));
+    return ct > 0 && ct < c ? ct : c;
+}
+
+PsfWidths widthsFor(const core::CaptureHeader& h, const core::Recipe& r, double z0) {
+    const double c = viewSpeed(h, r);
     const DasParams das = dasParams(r);
     const double B = h.array.fractional_bandwidth > 0 ? h.array.fractional_bandwidth : 0.6;
     return pointSpreadWidths(c, h.array.centre_frequency_hz, B, effectiveFNumber(h, das, z0));

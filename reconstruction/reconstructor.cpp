@@ -146,12 +146,13 @@ struct Reconstructor::Impl {
     enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
     bool full_aperture = false;
     std::vector<uint8_t> excluded_el;  // per array element: 1 = das.excluded_elements (weight 0)
+    bool split_legs = false;  // the view's transmit and receive paths differ (e.g. TT-T): separate transmit tables
     std::unique_ptr<WavenumberImager> wavenumber;  // das.method = wavenumber: replaces the delay-and-sum below
 
 
     struct Worker {
         std::unique_ptr<AnalyticSignal> analytic;
-        std::vector<float> x, z, tof, w, txd, ones, rsum, tsum;
+        std::vector<float> x, z, tof, tof_tx, w, txd, ones, rsum, tsum;
         std::vector<uint8_t> any;
         std::vector<const float*> tx_delay, tx_weight;  // per transmit of the block
         std::vector<float> tx_off, tx_scale;
@@ -179,8 +180,11 @@ struct Reconstructor::Impl {
                        }).share();
         das = dasParams(recipe);
         if (das.method == "wavenumber") checkWavenumberCapture(h);
-        model = makeDelayModel(h, recipe);
         grid = resolveGrid(h, recipe);
+        if (das.method == "wavenumber" && !usesHomogeneousModel(h, recipe))
+            throw core::SettingError("wavenumber imaging supports the direct L-L view on contact only (delay_model.mode = " +
+                                     recipe.text("delay_model.mode") + "); use das.method = delay_and_sum");
+        model = makeDelayModel(h, recipe, &grid, nthreads);
         fidelity_db = recon::amplitudeFidelityDb(h, recipe, grid);
         if (das.method == "wavenumber") {
             wavenumber = std::make_unique<WavenumberImager>(c, recipe, grid, nthreads);
@@ -248,7 +252,10 @@ struct Reconstructor::Impl {
             }
         acc_pixels = off;
         apod = das.apodization == "rectangular" ? Apod::Rect : das.apodization == "tukey" ? Apod::Tukey : Apod::Hann;
-        full_aperture = das.aperture == "full";
+        // Through a wedge the pixel's x is along the part surface, not the array: the dynamic
+        // aperture has no meaning there, so the whole array takes part (with the window).
+        full_aperture = das.aperture == "full" || model->specimenFrame();
+        split_legs = !model->symmetricLegs();
 
 
         const size_t per_tx = nrx * stride * 2 * sizeof(float) + nrx * ns * sizeof(float);
@@ -263,6 +270,7 @@ struct Reconstructor::Impl {
             w.x.resize(tile_max);
             w.z.resize(tile_max);
             w.tof.resize(ne * tile_max);
+            if (split_legs) w.tof_tx.resize(ne * tile_max);
             w.w.resize(ne * tile_max);
             w.ones.assign(tile_max, 1.0f);
             w.rsum.resize(tile_max);
@@ -335,10 +343,15 @@ struct Reconstructor::Impl {
             const auto& pos = h.array.element_position_m[size_t(used_el[s])];
             float* tof = W.tof.data() + s * tile_max;
             float* w = W.w.data() + s * tile_max;
-            model->pointTime(pos, W.x.data(), W.z.data(), n, tof);
+            model->elementTime(pos, size_t(used_el[s]), DelayLeg::Receive, W.x.data(), W.z.data(), n, tof);
             apertureWeights(pos[0], W.x.data(), W.z.data(), n, pitch, xc, half_len, w);
             if (excluded_el[size_t(used_el[s])]) std::fill(w, w + n, 0.0f);
             W.any[s] = scaleAndCount(tof, ffs, w, n) > 0;
+            if (split_legs) {
+                float* tt = W.tof_tx.data() + s * tile_max;
+                model->elementTime(pos, size_t(used_el[s]), DelayLeg::Transmit, W.x.data(), W.z.data(), n, tt);
+                for (size_t p = 0; p < n; ++p) tt[p] *= ffs;
+            }
         }
         float* ac = acc.data() + 2 * T.offset;
         float* s2 = das.coherence_factor ? acc_s2.data() + T.offset : nullptr;
@@ -361,7 +374,7 @@ struct Reconstructor::Impl {
                     const int32_t te = h.transmit.source_element[t];
                     const size_t s = size_t(slot_of_el[size_t(te)]);
                     W.tx_el[l] = te;
-                    W.tx_delay[l] = W.tof.data() + s * tile_max;
+                    W.tx_delay[l] = (split_legs ? W.tof_tx.data() : W.tof.data()) + s * tile_max;
                     W.tx_weight[l] = W.w.data() + s * tile_max;
                     if (!W.any[s]) W.tx_scale[l] = 0;
                     break;

@@ -10,6 +10,7 @@
 #include "core/capture_file.h"
 #include "core/error.h"
 #include "core/frame.h"
+#include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/sizing_setup.h"
 #include "reconstruction/sizing_setup.h"
@@ -117,7 +118,13 @@ JobResult reconstructToFile(const JobOptions& o, const core::Recipe& recipe) {
     core::ImageWriter out(o.image, grid.xAxis(), grid.zAxis(), recipe.toJson());
     // Facts the sizing tools' point-spread model needs and the frames' scan positions (optional,
     // docs/capture-format.md).
-    out.setAcquisition(recon::acquisitionOf(h));
+    // Views other than contact L-L also record the view and the image frame.
+    auto facts = recon::acquisitionOf(h);
+    if (!recon::usesHomogeneousModel(h, recipe)) {
+        facts.view_mode = recipe.text("delay_model.mode");
+        facts.image_frame = h.medium.wedge ? "specimen" : "array";
+    }
+    out.setAcquisition(facts);
     if (h.scan && h.scan->position_m.size() == h.frames) {
         std::vector<double> scan;
         for (size_t k = 0; k < frames.count; ++k) scan.push_back(h.scan->position_m[frames.first + k]);

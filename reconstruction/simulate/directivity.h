@@ -26,3 +26,16 @@ inline double stripDirectivity(double dx, double dz, double r, double width_m, d
 }
 
 }  // namespace umbra::recon::sim
+
+namespace umbra::recon::sim {
+
+/// Far-field directivity of a normal-stress strip (line) source on the free surface of an
+/// isotropic solid, for the longitudinal (L) or shear (T) wave at angle theta from the surface
+/// normal (Miller & Pursey, Proc. R. Soc. Lond. A 223 (1954) 521-541; formulas from memory):
+///   D_L = cos(t) (mu^2 - 2 sin^2 t) / F0(sin t),
+///   D_T = mu^(5/2) (mu^2 sin^2 t - 1)^(1/2) sin 2t / F0(mu sin t),
+///   F0(z) = (2 z^2 - mu^2)^2 - 4 z^2 (z^2 - 1)^(1/2) (z^2 - mu^2)^(1/2),  mu = c_L / c_T,
+/// magnitudes, both scaled by mu^2 so that D_L(0) = 1 (the ratio of T to L is kept).
+double millerPurseyDirectivity(bool shear, double theta_rad, double c_l, double c_t);
+
+}  // namespace umbra::recon::sim

@@ -50,7 +50,12 @@ std::vector<PointSource> makeSpeckle(const SpeckleSpec& s, uint64_t seed) {
     return out;
 }
 
-std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double lambda) {
+double flawWavelength(const Scene& s) {
+    if (s.elastic.enabled && s.medium.shear_speed_m_s) return *s.medium.shear_speed_m_s / s.array.centre_frequency_hz;
+    return wavelengthOf(s);
+}
+
+std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double lambda, bool opposite_tips) {
     const double L = std::hypot(f.x1_m - f.x0_m, f.z1_m - f.z0_m);
     const int n = std::max(2, int(std::ceil(L / (lambda / 4))));
     const double step = L / n;
@@ -61,6 +66,7 @@ std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double lambda) {
         out.push_back({f.x0_m + t * (f.x1_m - f.x0_m), f.z0_m + t * (f.z1_m - f.z0_m), f.amplitude * step / lambda});
     }
     out.push_back({f.x1_m, f.z1_m, f.tip_amplitude});
+    if (opposite_tips) (f.z1_m >= f.z0_m ? out.back() : out.front()).amplitude = -f.tip_amplitude;
     return out;
 }
 
@@ -69,7 +75,7 @@ FrameContent frameContent(const Scene& s, size_t f, const std::vector<PointSourc
     const double ys = s.frames.scanPosition(f);
     const auto [dx, dz] = s.frames.displacement(f);
     const double fw = s.array.elevation_beam_width_m;
-    const double lambda = wavelengthOf(s);
+    const double lambda = flawWavelength(s);
     for (auto& p : s.points) {
         const double w = elevationWeightPoint(p.position_m[1], ys, fw);
         if (w > 1e-6) c.points.push_back({p.position_m[0] + dx, p.position_m[2] + dz, p.amplitude * w});
@@ -77,7 +83,7 @@ FrameContent frameContent(const Scene& s, size_t f, const std::vector<PointSourc
     for (auto& fl : s.flaws) {
         const double w = elevationWeightRange(fl.y, ys, fw);
         if (w <= 1e-6) continue;
-        for (auto& p : expandFlaw(fl, lambda)) c.points.push_back({p.x_m + dx, p.z_m + dz, p.amplitude * w});
+        for (auto& p : expandFlaw(fl, lambda, s.elastic.enabled)) c.points.push_back({p.x_m + dx, p.z_m + dz, p.amplitude * w});
     }
     for (auto& p : speckle) c.points.push_back({p.x_m + dx, p.z_m + dz, p.amplitude});
     for (auto& h : s.holes) {
@@ -124,13 +130,13 @@ std::string regionsJson(const Scene& s) {
 
 core::TruthInfo makeTruth(const Scene& s) {
     core::TruthInfo t;
-    const double lambda = wavelengthOf(s);
+    const double lambda = flawWavelength(s);
     for (auto& p : s.points) {
         t.scatterer_position_m.push_back(p.position_m);
         t.scatterer_amplitude.push_back(p.amplitude);
     }
     for (auto& f : s.flaws) {
-        for (auto& p : expandFlaw(f, lambda)) {
+        for (auto& p : expandFlaw(f, lambda, s.elastic.enabled)) {
             t.scatterer_position_m.push_back({p.x_m, midY(f.y), p.z_m});
             t.scatterer_amplitude.push_back(p.amplitude);
         }
@@ -144,6 +150,7 @@ core::TruthInfo makeTruth(const Scene& s) {
         case FrameKind::Cine: t.frame = "array frame, positions at cine frame 0"; break;
         default: t.frame = "array frame"; break;
     }
+    if (s.wedge) t.frame = "specimen";
     t.regions_json = regionsJson(s);
     return t;
 }

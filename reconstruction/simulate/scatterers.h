@@ -40,7 +40,13 @@ std::vector<PointSource> makeSpeckle(const SpeckleSpec& s, uint64_t seed);
 
 /// Points making up a planar flaw: interior points spaced <= lambda/4 with amplitude
 /// a * spacing / lambda each, and the two tips with tip_amplitude.
-std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double wavelength_m);
+/// opposite_tips: the deeper tip's echo is inverted (diffraction from the two ends of a crack
+/// has opposite phase; used with elastic paths).
+std::vector<PointSource> expandFlaw(const PlanarFlaw& f, double wavelength_m, bool opposite_tips = false);
+
+/// Wavelength that sets the spacing of flaw points: the shear wavelength when elastic paths
+/// with a shear speed are simulated, else the longitudinal one.
+double flawWavelength(const Scene& s);
 
 /// Everything of frame f. `speckle` is the output of makeSpeckle (shared by all frames).
 FrameContent frameContent(const Scene& s, size_t f, const std::vector<PointSource>& speckle);

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "reconstruction/view_mode.h"
 #include "core/json_guard.h"
 
 namespace umbra::recon::sim {
@@ -280,6 +281,42 @@ Scene parseScene(const std::string& text, const std::string& source) {
         if (m.has("thickness_mm")) s.medium.thickness_m = m.positive("thickness_mm") * kMm;
         m.done();
     }
+    // --- wedge and elastic paths
+    if (top.has("wedge")) {
+        Obj w = top.obj("wedge");
+        WedgeSpec ws;
+        ws.speed_m_s = w.positive("speed_m_s");
+        if (ws.speed_m_s < 100 || ws.speed_m_s > 20000) w.fail(w.key("speed_m_s"), "must be between 100 and 20000 m/s");
+        const double a = w.num("angle_deg");
+        if (!(std::fabs(a) < 90)) w.fail(w.key("angle_deg"), "must be within (-90, 90) degrees");
+        ws.angle_rad = a * M_PI / 180;
+        ws.height_m = w.positive("height_mm") * kMm;
+        w.done();
+        s.wedge = ws;
+        s.elastic.enabled = true;
+    }
+    if (top.has("paths")) {
+        Obj p = top.obj("paths");
+        s.elastic.enabled = true;
+        if (p.has("modes")) {
+            const auto& arr = p.raw("modes");
+            if (!arr.is_array() || arr.empty() || arr.size() > kMaxSceneModes)
+                p.fail(p.key("modes"), "must be a list of 1 to " + std::to_string(kMaxSceneModes) + " views such as \"TT-T\"");
+            for (size_t i = 0; i < arr.size(); ++i) {
+                if (!arr[i].is_string()) p.fail(p.key("modes") + "[" + std::to_string(i) + "]", "must be a string such as \"TT-T\"");
+                try {
+                    s.elastic.modes.push_back(parseViewMode(arr[i].get<std::string>()).name);
+                } catch (const core::SettingError&) {
+                    p.fail(p.key("modes") + "[" + std::to_string(i) + "]",
+                           "\"" + arr[i].get<std::string>() + "\" is not a view (one or two letters L/T, a dash, one or two letters)");
+                }
+            }
+        }
+        const std::string sp = p.str("spreading", "2d");
+        if (sp != "2d" && sp != "3d") p.fail(p.key("spreading"), "must be \"2d\" or \"3d\"");
+        s.elastic.spreading_3d = sp == "3d";
+        p.done();
+    }
     // --- transmit
     {
         Obj t = top.obj("transmit");
@@ -522,6 +559,36 @@ Scene parseScene(const std::string& text, const std::string& source) {
             throw core::InputError(source, "speckle.density_per_mm2", "scatterer tables for " + std::to_string(ntx) + " transmits would exceed 4 GB");
     }
     checkSceneBounds(s, source);
+    if (s.elastic.enabled) {
+        // Default views: direct L and T, and the shear skips when the plate's thickness is known.
+        const bool shear = s.medium.shear_speed_m_s.has_value(), thick = s.medium.thickness_m.has_value();
+        if (s.elastic.modes.empty()) {
+            s.elastic.modes.push_back("L-L");
+            if (shear) s.elastic.modes.push_back("T-T");
+            if (shear && thick) s.elastic.modes.insert(s.elastic.modes.end(), {"TT-T", "T-TT", "TT-TT"});
+        }
+        for (const auto& m : s.elastic.modes) {
+            const ViewMode v = parseViewMode(m);
+            if (v.usesShear() && !shear) throw core::InputError(source, "paths.modes", m + " needs medium.shear_speed_m_s");
+            if (v.usesBackWall() && !thick) throw core::InputError(source, "paths.modes", m + " needs medium.thickness_mm");
+        }
+        if (shear && !(*s.medium.shear_speed_m_s < s.medium.speed_m_s))
+            throw core::InputError(source, "medium.shear_speed_m_s", "must be below medium.speed_m_s");
+        if (s.transmit.kind != core::TransmitKind::SingleElement)
+            throw core::InputError(source, "transmit.kind", "elastic paths and wedges are simulated for single_element (full-matrix) captures only");
+        double pts = double(s.points.size() + s.holes.size());
+        for (auto& f : s.flaws) pts += std::hypot(f.x1_m - f.x0_m, f.z1_m - f.z0_m) / (s.medium.speed_m_s / s.array.centre_frequency_hz / 4) + 2;
+        if (s.speckle.enabled) throw core::InputError(source, "speckle", "speckle is not simulated with elastic paths or a wedge");
+        if (pts * double(s.array.elements) * 4.0 > kMaxSceneElasticPaths)
+            throw core::InputError(source, "paths", "too many reflector paths to evaluate (reflector points x elements x leg kinds > 2e8)");
+        if (s.wedge) {
+            // The array must sit above the part: every element's height above the surface > 0.
+            const double c = std::cos(s.wedge->angle_rad), sn = std::sin(s.wedge->angle_rad);
+            for (double x : s.array.elementX())
+                if (!(x * sn + s.wedge->height_m * c > 0))
+                    throw core::InputError(source, "wedge.height_mm", "puts array elements at or below the part surface (raise the array)");
+        }
+    }
     return s;
 }
 

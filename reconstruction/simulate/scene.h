@@ -42,9 +42,27 @@ struct SamplingSpec {
 
 struct MediumSpec {
     double speed_m_s = 0;                      ///< longitudinal, used for every path
-    std::optional<double> shear_speed_m_s;     ///< recorded in the capture, not simulated
+    std::optional<double> shear_speed_m_s;     ///< recorded in the capture; simulated in T legs of elastic paths
     double attenuation_db_per_cm_mhz = 0;      ///< one way, amplitude, linear in frequency
     std::optional<double> thickness_m;
+};
+
+/// Wedge under the array (scene key "wedge"): the array centre sits height_m above the part
+/// surface along the array normal, the surface tilted angle_rad from the array face
+/// (docs/capture-format.md: surface_origin_m = (0, 0, height_m), surface_tilt_rad = angle_rad).
+/// Reflector positions are then in the specimen frame (x_s along the surface, z_s depth).
+struct WedgeSpec {
+    double speed_m_s = 0;
+    double angle_rad = 0;
+    double height_m = 0;
+};
+
+/// Elastic paths (scene key "paths", and every scene with a wedge): which views' echoes to
+/// simulate (delay_model.mode notation: transmit legs, dash, receive legs), 2-D or 3-D spreading.
+struct ElasticSpec {
+    bool enabled = false;
+    std::vector<std::string> modes;  ///< e.g. {"L-L", "T-T", "TT-T", "T-TT", "TT-TT"}
+    bool spreading_3d = false;
 };
 
 /// Range along y (elevation / scan axis) over which an extended reflector exists.
@@ -148,6 +166,8 @@ struct Scene {
     TransmitSpec transmit;
     SamplingSpec sampling;
     MediumSpec medium;
+    std::optional<WedgeSpec> wedge;
+    ElasticSpec elastic;
     std::vector<PointReflector> points;
     std::vector<SideDrilledHole> holes;
     std::vector<PlanarFlaw> flaws;
@@ -165,6 +185,9 @@ inline constexpr size_t kMaxSceneFlaws = 1000;
 inline constexpr size_t kMaxSceneFlawPoints = 2000000;  ///< points of all planar flaws together (lambda/4 apart)
 inline constexpr double kMaxSceneExtentM = 10.0;         ///< every reflector within 10 m of the array
 inline constexpr double kMaxPulseSamples = 100000;       ///< samples of the pulse table
+inline constexpr size_t kMaxSceneModes = 16;              ///< views listed in "paths.modes"
+/// Elastic paths: scatterer path evaluations per frame (points x elements x leg sequences) at most.
+inline constexpr double kMaxSceneElasticPaths = 2e8;
 
 /// Parses and validates a scene from JSON text. `source` names the file in messages.
 /// Throws core::InputError(source, "key.path", problem) for malformed JSON, missing or

@@ -14,6 +14,7 @@
 
 #include "core/capture_file.h"
 #include "core/error.h"
+#include "reconstruction/simulate/elastic.h"
 #include "reconstruction/simulate/geometry.h"
 #include "reconstruction/simulate/noise.h"
 #include "reconstruction/simulate/pulse.h"
@@ -45,6 +46,7 @@ public:
         : s_(s),
           seed_(o.seed.value_or(s.seed)),
           model_(s),
+          elastic_(s),
           pulse_(s.array.centre_frequency_hz, s.array.fractional_bandwidth),
           table_(pulse_, s.sampling.frequency_hz),
           noise_(pulse_, s.sampling.frequency_hz),
@@ -62,6 +64,10 @@ public:
     void frame(size_t f, float* out, SimStats& st) {
         std::fill(out, out + frameSize(), 0.0f);
         const FrameContent fc = frameContent(s_, f, speckle_);
+        if (s_.elastic.enabled) {
+            elasticFrame(fc, out, st);
+            return;
+        }
         const size_t K = fc.points.size();
         st.scatterers = K + fc.holes.size() + (s_.back_wall ? size_t(1 + s_.back_wall->repeats) : 0);
         const double fs = s_.sampling.frequency_hz, t0 = s_.sampling.start_time_s;
@@ -111,6 +117,86 @@ public:
         st.scatterer_traces += traces * double(st.scatterers);
         st.samples_written += written.load();
         st.nominal_samples += traces * double(st.scatterers) * double(ns_);
+    }
+
+    /// Elastic paths (wedge, shear, skips): every listed view's echo of every point and hole.
+    void elasticFrame(const FrameContent& fc, float* out, SimStats& st) {
+        std::vector<ViewMode> modes;
+        std::vector<std::vector<Wave>> seqs;
+        std::vector<std::pair<size_t, size_t>> mi;  // (tx seq, rx seq) per mode
+        auto seqIndex = [&](const std::vector<Wave>& q) {
+            for (size_t i = 0; i < seqs.size(); ++i)
+                if (seqs[i] == q) return i;
+            seqs.push_back(q);
+            return seqs.size() - 1;
+        };
+        for (const auto& m : s_.elastic.modes) {
+            modes.push_back(parseViewMode(m));
+            const size_t a = seqIndex(modes.back().tx);
+            mi.emplace_back(a, seqIndex(modes.back().rx));
+        }
+        const size_t K = fc.points.size(), H = fc.holes.size(), P = K + H, nq = seqs.size(), nel = nrx_;
+        st.scatterers = P;
+        // Legs [seq][element][point] (holes after points, to their centres), transmit and receive.
+        std::vector<ElasticLeg> lt(nq * nel * P), lr(nq * nel * P);
+        const auto el = s_.array.elementX();
+        parallelFor(nel, [&](size_t e) {
+            const core::Vec3 pos{el[e], 0, 0};
+            for (size_t q = 0; q < nq; ++q)
+                for (size_t k = 0; k < P; ++k) {
+                    const double x = k < K ? fc.points[k].x_m : fc.holes[k - K].x_m, z = k < K ? fc.points[k].z_m : fc.holes[k - K].z_m;
+                    lt[(q * nel + e) * P + k] = elastic_.leg(pos, seqs[q], x, z, false);
+                    lr[(q * nel + e) * P + k] = elastic_.leg(pos, seqs[q], x, z, true);
+                }
+        });
+        const double fs = s_.sampling.frequency_hz, t0 = s_.sampling.start_time_s, f0 = s_.array.centre_frequency_hz;
+        std::atomic<double> written{0};
+        parallelFor(nrx_, [&](size_t r) {
+            double w = 0;
+            const int n = int(ns_);
+            for (size_t t = 0; t < ntx_; ++t) {
+                float* trace = out + (t * nrx_ + r) * ns_;
+                const size_t te = s_.transmit.source_elements.empty() ? t : size_t(s_.transmit.source_elements[t]);
+                for (const auto& [qa, qb] : mi) {
+                    const ElasticLeg* A = lt.data() + (qa * nel + te) * P;
+                    const ElasticLeg* B = lr.data() + (qb * nel + r) * P;
+                    for (size_t k = 0; k < K; ++k) {
+                        if (!A[k].valid || !B[k].valid) continue;
+                        w += table_.add(trace, n, (A[k].delay_s + B[k].delay_s - t0) * fs, float(A[k].amplitude * B[k].amplitude * fc.points[k].amplitude));
+                    }
+                    // Side-drilled holes: the echo comes from the surface point facing the bisector of
+                    // the two arriving rays (first order: each path shortens by a (n . u) / c); 2-D
+                    // Kirchhoff amplitude of a cylinder, proportional to sqrt(radius / wavelength).
+                    for (size_t h = 0; h < H; ++h) {
+                        const ElasticLeg& a = A[K + h];
+                        const ElasticLeg& b = B[K + h];
+                        if (!a.valid || !b.valid) continue;
+                        double nx = a.ux + b.ux, nz = a.uz + b.uz;
+                        const double nn = std::hypot(nx, nz);
+                        if (nn < 1e-6) continue;  // forward scattering: no specular point
+                        nx /= nn;
+                        nz /= nn;
+                        const double rad = fc.holes[h].radius_m;
+                        const double d = a.delay_s + b.delay_s - rad * (nx * a.ux + nz * a.uz) / a.last_speed_m_s -
+                                         rad * (nx * b.ux + nz * b.uz) / b.last_speed_m_s;
+                        const double amp = fc.holes[h].amplitude * std::sqrt(rad / (b.last_speed_m_s / f0));
+                        w += table_.add(trace, n, (d - t0) * fs, float(a.amplitude * b.amplitude * amp));
+                    }
+                }
+                if (s_.back_wall && !s_.wedge) {  // contact: the specular L back-wall echo as without elastic paths
+                    double coef = s_.back_wall->amplitude;
+                    for (int rep = 0; rep <= s_.back_wall->repeats; ++rep, coef *= s_.back_wall->amplitude) {
+                        const Leg l = model_.backWall(t, int(r), s_.back_wall->depth_m, rep);
+                        if (l.amplitude != 0) w += table_.add(trace, n, (l.delay_s - t0) * fs, float(coef * l.amplitude));
+                    }
+                }
+            }
+            written.fetch_add(w);
+        });
+        const double traces = double(ntx_) * double(nrx_);
+        st.scatterer_traces += traces * double(P) * double(modes.size());
+        st.samples_written += written.load();
+        st.nominal_samples += traces * double(P) * double(modes.size()) * double(ns_);
     }
 
     /// Adds noise of the given rms to frame f (buffer as from frame()).
@@ -176,6 +262,7 @@ private:
     const Scene& s_;
     uint64_t seed_;
     PathModel model_;
+    ElasticModel elastic_;
     GaussianPulse pulse_;
     PulseTable table_;
     NoiseGenerator noise_;
@@ -230,6 +317,7 @@ core::CaptureHeader makeHeader(const Scene& s, const SimOptions& o) {
     h.medium.shear_speed_m_s = s.medium.shear_speed_m_s;
     h.medium.attenuation_db_per_cm_mhz = s.medium.attenuation_db_per_cm_mhz;
     h.medium.thickness_m = s.medium.thickness_m;
+    if (s.wedge) h.medium.wedge = wedgeInfo(*s.wedge);
     const size_t nf = frameCount(s, o);
     if (s.frames.kind == FrameKind::Encoded) {
         core::ScanInfo sc;
