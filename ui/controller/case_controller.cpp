@@ -876,6 +876,7 @@ QString CaseController::budgetText(const std::string& id) const {
                          .arg(s->resolution.axial_mm, 0, 'f', 2);
         for (const auto& w : s->warnings) parts << tr("Warning: %1").arg(QString::fromStdString(w));
     }
+    if (const QString cw = coverageWarning(*m); !cw.isEmpty()) parts << tr("Warning: %1").arg(cw);
     parts << tr("Expanded uncertainties use k = 2 (about 95 %). A sizing aid: the written procedure, the applicable code and "
                 "qualified people decide.");
     return parts.join(QStringLiteral("\n\n"));
@@ -1036,6 +1037,59 @@ std::vector<std::string> CaseController::calibrationLines() const {
     std::vector<std::string> out = c->speed_calibration;
     out.insert(out.end(), c->element_health.begin(), c->element_health.end());
     return out;
+}
+
+const recon::CoverageMap* CaseController::coverage() const {
+    if (!reader_ || !envelope_ || envelope_->nx() < 2 || envelope_->nz() < 2) return nullptr;
+    const std::string mode = recipe_.has("delay_model.mode") ? recipe_.text("delay_model.mode") : "L-L";
+    recon::Grid g;
+    g.x_min_m = envelope_->x_m.front();
+    g.x_max_m = envelope_->x_m.back();
+    g.z_min_m = envelope_->z_m.front();
+    g.z_max_m = envelope_->z_m.back();
+    g.step_m = std::max(envelope_->x_m[1] - envelope_->x_m[0], kCoverageStepMm * 1e-3);
+    std::ostringstream key;
+    key.precision(17);
+    key << reader_->path() << '|' << mode << '|' << g.x_min_m << '|' << g.x_max_m << '|' << g.z_min_m << '|' << g.z_max_m << '|'
+        << g.step_m << '|' << speedMps();
+    if (coverage_ && coverage_key_ == key.str()) return &*coverage_;
+    coverage_.reset();
+    coverage_key_ = key.str();
+    try {
+        recon::CoverageOptions o;
+        o.threads = 2;
+        coverage_ = recon::coverageMap(reader_->header(), mode, g, o, &recipe_);
+    } catch (const std::exception&) {
+        return nullptr;  // the view cannot be mapped for this capture: no contours, no warning
+    }
+    return &*coverage_;
+}
+
+std::optional<double> CaseController::coverageDbAt(double x_mm, double z_mm) const {
+    const recon::CoverageMap* c = coverage();
+    if (!c || c->x_m.size() < 2 || c->z_m.size() < 2) return std::nullopt;
+    const double fx = (x_mm * 1e-3 - c->x_m.front()) / (c->x_m[1] - c->x_m[0]);
+    const double fz = (z_mm * 1e-3 - c->z_m.front()) / (c->z_m[1] - c->z_m[0]);
+    if (fx < 0 || fz < 0 || fx > double(c->x_m.size() - 1) || fz > double(c->z_m.size() - 1)) return std::nullopt;
+    const size_t ix = std::min(size_t(fx), c->x_m.size() - 2), iz = std::min(size_t(fz), c->z_m.size() - 2);
+    const double ax = fx - double(ix), az = fz - double(iz);
+    return (1 - az) * ((1 - ax) * c->at(iz, ix) + ax * c->at(iz, ix + 1)) + az * ((1 - ax) * c->at(iz + 1, ix) + ax * c->at(iz + 1, ix + 1));
+}
+
+QString CaseController::coverageWarning(const core::Measurement& m) const {
+    if (m.points.empty()) return {};
+    double x = 0, z = 0;
+    for (const auto& p : m.points) {
+        x += p.x_mm;
+        z += p.z_mm;
+    }
+    x /= double(m.points.size());
+    z /= double(m.points.size());
+    const auto db = coverageDbAt(x, z);
+    if (!db || *db >= -6.0) return {};
+    return tr("Outside the −6 dB coverage of view %1 (%2 dB at its centre): the view is weak there; confirm with another view")
+        .arg(QString::fromStdString(coverage_ ? coverage_->mode : std::string("?")))
+        .arg(*db, 0, 'f', 1);
 }
 
 void CaseController::editWeld(const std::optional<core::WeldGeometry>& w, const QString& what) {
@@ -1283,6 +1337,8 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
     f.number = 1;
     for (const auto& x : doc_.findings) f.number = std::max(f.number, x.number + 1);
     f.indication = indicationFrom(measurement(measurement_id));
+    if (const core::Measurement* m = measurement(measurement_id))
+        if (const QString cw = coverageWarning(*m); !cw.isEmpty()) f.indication.description = cw.toStdString() + ".";
     auto after = doc_.findings;
     after.push_back(f);
     editFindings(after, tr("Add finding %1").arg(f.number));

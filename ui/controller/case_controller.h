@@ -23,6 +23,7 @@
 #include "core/measurement.h"
 #include "core/parameters.h"
 #include "core/sizing.h"
+#include "reconstruction/coverage.h"
 #include "reconstruction/sizing_setup.h"
 #include "ui/controller/beamform_worker.h"
 
@@ -276,6 +277,18 @@ public:
     /// Calibration lines of the active capture (speed, then elements).
     std::vector<std::string> calibrationLines() const;
 
+    // ------------------------------------------------------------------ coverage
+    /// Sensitivity map of the recipe's view (delay_model.mode) over the image region, on a grid of
+    /// at most kCoverageStepMm (recon::coverageMap; computed on first use and cached per capture,
+    /// view and region). nullptr without an image or when the view cannot be mapped.
+    const recon::CoverageMap* coverage() const;
+    static constexpr double kCoverageStepMm = 0.25;
+    /// Coverage in dB at a point (bilinear), nullopt outside the map.
+    std::optional<double> coverageDbAt(double x_mm, double z_mm) const;
+    /// "Outside the −6 dB coverage of view L-L (−8.3 dB at its centre)" when the centre of the
+    /// measurement's points lies below −6 dB of the view's sensitivity; "" otherwise.
+    QString coverageWarning(const core::Measurement& m) const;
+
     // ------------------------------------------------------------------ weld overlay
     /// The case's weld geometry (drawn over every view), if entered.
     const std::optional<core::WeldGeometry>& weld() const { return doc_.weld; }
@@ -356,6 +369,8 @@ private:
     FramePtr envelope_;
     std::vector<float> db_;
     std::vector<float> tgc_amp_;
+    mutable std::optional<recon::CoverageMap> coverage_;  ///< cache for coverage()
+    mutable std::string coverage_key_;                    ///< capture, view and region it was made for
     mutable std::optional<recon::SizingSetup> sizing_setup_;  ///< cache; reset when tgc_amp_ changes
     QImage image_;
     QImage top_image_;

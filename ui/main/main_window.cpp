@@ -450,6 +450,11 @@ void MainWindow::buildActions() {
     a->setChecked(view_->weldVisible());
     a->setShortcut(QKeySequence(Qt::Key_W));
     a->setToolTip(tr("Show the case's weld geometry over the image (Tools → Weld geometry… to enter it)"));
+    a = view->addAction(tr("Co&verage contours"), view_, &ImageView::setCoverageVisible);
+    a->setCheckable(true);
+    a->setChecked(view_->coverageVisible());
+    a->setToolTip(tr("−6 dB (dashed) and −12 dB (dotted) contours of the view's sensitivity: element directivity, spreading and "
+                     "interface losses for a point reflector (reconstruction/coverage.h). A measurement outside −6 dB is warned about."));
     a = view->addAction(tr("&Cancel reconstruction"), ctl_, &CaseController::cancelReconstruction);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_Period));
     view->addSeparator();

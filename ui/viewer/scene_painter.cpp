@@ -312,6 +312,45 @@ QPen weldPen(const core::WeldPolyline& l, double k) {
     return pen;
 }
 
+std::vector<QLineF> isoSegments(const std::vector<double>& xs, const std::vector<double>& zs, const std::vector<float>& v, float level) {
+    std::vector<QLineF> out;
+    const size_t nx = xs.size(), nz = zs.size();
+    if (nx < 2 || nz < 2 || v.size() != nx * nz) return out;
+    auto val = [&](size_t iz, size_t ix) { return double(v[iz * nx + ix]); };
+    for (size_t iz = 0; iz + 1 < nz; ++iz)
+        for (size_t ix = 0; ix + 1 < nx; ++ix) {
+            // Corners counter-clockwise: (ix, iz), (ix+1, iz), (ix+1, iz+1), (ix, iz+1).
+            const double c[4] = {val(iz, ix), val(iz, ix + 1), val(iz + 1, ix + 1), val(iz + 1, ix)};
+            const QPointF p[4] = {{xs[ix], zs[iz]}, {xs[ix + 1], zs[iz]}, {xs[ix + 1], zs[iz + 1]}, {xs[ix], zs[iz + 1]}};
+            int mask = 0;
+            for (int k = 0; k < 4; ++k)
+                if (c[k] >= level) mask |= 1 << k;
+            if (mask == 0 || mask == 15) continue;
+            auto edge = [&](int k) {  // crossing on edge k (corner k to k+1)
+                const int a = k, b = (k + 1) % 4;
+                const double t = (level - c[a]) / (c[b] - c[a]);
+                return p[a] + (p[b] - p[a]) * t;
+            };
+            std::vector<int> edges;
+            for (int k = 0; k < 4; ++k)
+                if (((mask >> k) & 1) != ((mask >> ((k + 1) % 4)) & 1)) edges.push_back(k);
+            if (edges.size() == 2) {
+                out.emplace_back(edge(edges[0]), edge(edges[1]));
+            } else if (edges.size() == 4) {  // saddle
+                const bool centre_in = (c[0] + c[1] + c[2] + c[3]) / 4 >= level;
+                const bool first_in = mask & 1;
+                if (centre_in == first_in) {
+                    out.emplace_back(edge(0), edge(1));
+                    out.emplace_back(edge(2), edge(3));
+                } else {
+                    out.emplace_back(edge(3), edge(0));
+                    out.emplace_back(edge(1), edge(2));
+                }
+            }
+        }
+    return out;
+}
+
 namespace {
 void drawWeld(QPainter& p, const ViewTransform& vt, const std::vector<core::WeldPolyline>& lines, double k) {
     p.save();
@@ -358,6 +397,12 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
         p.setClipRect(area.intersected(img));  // only over the image: no lines over empty margins
         drawWeld(p, vt, sc.weld, k);
         p.restore();
+    }
+    for (const auto& [level, segs] : sc.coverage) {
+        QPen pen(level > -9 ? QColor(255, 170, 60, 220) : QColor(255, 120, 200, 180), 1.3 * k);
+        pen.setStyle(level > -9 ? Qt::DashLine : Qt::DotLine);
+        p.setPen(pen);
+        for (const auto& l : segs) p.drawLine(QLineF(vt.toPixel(l.p1()), vt.toPixel(l.p2())));
     }
     for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, k);
     p.restore();

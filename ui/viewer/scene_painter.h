@@ -4,6 +4,7 @@
 // exports) a scale bar and caption. Shared by the on-screen image view and the PNG export so
 // both look the same.
 #include <QColor>
+#include <QLineF>
 #include <QImage>
 #include <QPainter>
 #include <QRectF>
@@ -37,7 +38,14 @@ struct Scene {
     std::map<std::string, std::vector<core::Quantity>> quantities;
     std::map<std::string, core::SizingResult> sizings;  ///< image sizing results (drop edges, tips) by measurement id
     std::vector<core::WeldPolyline> weld;               ///< weld overlay (specimen frame, mm); empty = none
+    /// Coverage contours: level (dB re the view's best pixel) and its segments in mm.
+    std::vector<std::pair<double, std::vector<QLineF>>> coverage;
 };
+
+/// Segments (mm) of the iso-line `level` of a map v[iz][ix] on axes x_mm, z_mm: marching
+/// squares with linear interpolation along each cell edge (saddles split by the cell mean).
+std::vector<QLineF> isoSegments(const std::vector<double>& x_mm, const std::vector<double>& z_mm, const std::vector<float>& v,
+                                float level);
 
 /// Layout and look of one rendering.
 struct SceneStyle {
