@@ -1068,9 +1068,12 @@ const recon::CoverageMap* CaseController::coverage() const {
 std::optional<double> CaseController::coverageDbAt(double x_mm, double z_mm) const {
     const recon::CoverageMap* c = coverage();
     if (!c || c->x_m.size() < 2 || c->z_m.size() < 2) return std::nullopt;
-    const double fx = (x_mm * 1e-3 - c->x_m.front()) / (c->x_m[1] - c->x_m[0]);
-    const double fz = (z_mm * 1e-3 - c->z_m.front()) / (c->z_m[1] - c->z_m[0]);
-    if (fx < 0 || fz < 0 || fx > double(c->x_m.size() - 1) || fz > double(c->z_m.size() - 1)) return std::nullopt;
+    double fx = (x_mm * 1e-3 - c->x_m.front()) / (c->x_m[1] - c->x_m[0]);
+    double fz = (z_mm * 1e-3 - c->z_m.front()) / (c->z_m[1] - c->z_m[0]);
+    const double mx = double(c->x_m.size() - 1), mz = double(c->z_m.size() - 1), eps = 1e-6;
+    if (fx < -eps || fz < -eps || fx > mx + eps || fz > mz + eps) return std::nullopt;
+    fx = std::clamp(fx, 0.0, mx);
+    fz = std::clamp(fz, 0.0, mz);
     const size_t ix = std::min(size_t(fx), c->x_m.size() - 2), iz = std::min(size_t(fz), c->z_m.size() - 2);
     const double ax = fx - double(ix), az = fz - double(iz);
     return (1 - az) * ((1 - ax) * c->at(iz, ix) + ax * c->at(iz, ix + 1)) + az * ((1 - ax) * c->at(iz + 1, ix) + ax * c->at(iz + 1, ix + 1));
