@@ -312,6 +312,35 @@ DistanceAmplitudeCurve readLegacyReference(const Reader& r, const json& j, const
     return c;
 }
 
+WeldGeometry readWeld(const Reader& r, const json& j, const std::string& path) {
+    r.object(j, path);
+    WeldGeometry w;
+    const std::string shape = r.text(j, path, "shape", true);
+    const auto s = weldShapeFromName(shape);
+    if (!s) r.fail(Reader::key(path, "shape"), "unknown weld shape \"" + shape + "\" (V, X, U, J)");
+    w.shape = *s;
+    w.thickness_mm = r.numberValue(r.required(j, path, "thickness_mm"), Reader::key(path, "thickness_mm"));
+    w.centre_x_mm = r.number(j, path, "centre_x_mm", w.centre_x_mm);
+    w.bevel_angle_deg = r.number(j, path, "bevel_angle_deg", w.bevel_angle_deg);
+    w.root_gap_mm = r.number(j, path, "root_gap_mm", w.root_gap_mm);
+    w.root_face_mm = r.number(j, path, "root_face_mm", w.root_face_mm);
+    w.groove_radius_mm = r.number(j, path, "groove_radius_mm", w.groove_radius_mm);
+    w.cap_width_mm = r.number(j, path, "cap_width_mm", w.cap_width_mm);
+    w.cap_height_mm = r.number(j, path, "cap_height_mm", w.cap_height_mm);
+    w.root_width_mm = r.number(j, path, "root_width_mm", w.root_width_mm);
+    w.root_height_mm = r.number(j, path, "root_height_mm", w.root_height_mm);
+    try {
+        checkWeld(w);
+    } catch (const SettingError& e) {
+        // "weld.bevel_angle_deg: must be ..." -> key and problem apart
+        const std::string what = e.what();
+        const auto colon = what.find(": ");
+        r.fail(colon == std::string::npos ? path : what.substr(0, colon),
+               colon == std::string::npos ? what : what.substr(colon + 2));
+    }
+    return w;
+}
+
 std::string resolvedPath(const std::string& stored, const std::string& base_dir) {
     if (stored.empty() || base_dir.empty()) return stored;
     const fs::path p(stored);
@@ -369,6 +398,8 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir, boo
         json ms = json::array();
         for (const auto& m : c.measurements) ms.push_back(measurementJson(m));
         cj["measurements"] = ms;
+        if (!c.speed_calibration.empty() || !c.element_health.empty())
+            cj["calibration"] = json{{"speed", c.speed_calibration}, {"elements", c.element_health}};
         caps.push_back(cj);
     }
     j["captures"] = caps;
@@ -401,6 +432,19 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir, boo
         if (!doc.sizing_medium.empty()) sj["medium"] = doc.sizing_medium;
         if (doc.speed_uncertainty_rel) sj["speed_uncertainty_rel"] = *doc.speed_uncertainty_rel;
         j["sizing"] = sj;
+    }
+    if (const auto& w = doc.weld) {
+        j["weld"] = json{{"shape", weldShapeName(w->shape)},
+                         {"thickness_mm", w->thickness_mm},
+                         {"centre_x_mm", w->centre_x_mm},
+                         {"bevel_angle_deg", w->bevel_angle_deg},
+                         {"root_gap_mm", w->root_gap_mm},
+                         {"root_face_mm", w->root_face_mm},
+                         {"groove_radius_mm", w->groove_radius_mm},
+                         {"cap_width_mm", w->cap_width_mm},
+                         {"cap_height_mm", w->cap_height_mm},
+                         {"root_width_mm", w->root_width_mm},
+                         {"root_height_mm", w->root_height_mm}};
     }
     // Invalid UTF-8 in a user text is replaced (U+FFFD) rather than failing the save.
     return j.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
@@ -475,6 +519,12 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
             if (const json* ms = r.array(cj, p, "measurements"))
                 for (size_t k = 0; k < ms->size(); ++k)
                     c.measurements.push_back(readMeasurement(r, (*ms)[k], Reader::index(Reader::key(p, "measurements"), k)));
+            if (cj.contains("calibration") && !cj["calibration"].is_null()) {
+                const std::string kp = Reader::key(p, "calibration");
+                const json& kj = r.object(cj["calibration"], kp);
+                c.speed_calibration = r.texts(kj, kp, "speed");
+                c.element_health = r.texts(kj, kp, "elements");
+            }
             doc.captures.push_back(std::move(c));
         }
     }
@@ -507,6 +557,7 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
             doc.speed_uncertainty_rel = v;
         }
     }
+    if (j.contains("weld") && !j["weld"].is_null()) doc.weld = readWeld(r, j["weld"], "weld");
     return doc;
 }
 

@@ -12,6 +12,7 @@
 #include "core/distance_amplitude.h"
 #include "core/finding.h"
 #include "core/measurement.h"
+#include "core/weld_geometry.h"
 
 namespace umbra::core {
 
@@ -33,6 +34,10 @@ struct CaseCapture {
     std::string recipe_json;   ///< the recipe as JSON text ({"stage": {"param": value}}; "" = none)
     ViewState view;
     std::vector<Measurement> measurements;
+    /// Calibration done on this capture, as plain lines for the technique block: the speed of
+    /// sound (and fixed delay) and the element health, each with its method and uncertainty.
+    std::vector<std::string> speed_calibration;
+    std::vector<std::string> element_health;
     bool operator==(const CaseCapture&) const = default;
 };
 
@@ -73,6 +78,8 @@ struct CaseDocument {
     /// (unset = the medium's default; core/uncertainty.h).
     std::string sizing_medium;
     std::optional<double> speed_uncertainty_rel;
+    /// Weld geometry drawn over every view (unset: no overlay; older cases have none).
+    std::optional<WeldGeometry> weld;
     bool operator==(const CaseDocument&) const = default;
 };
 

@@ -5,6 +5,7 @@
 #include <cstdlib>
 #include <algorithm>
 #include <numeric>
+#include <sstream>
 
 #include "core/error.h"
 #include "reconstruction/detail/spec_helpers.h"
@@ -47,7 +48,68 @@ core::StageSpec dasSpec() {
                        false),
              flagParam("reciprocity", "Use reciprocity",
                        "Full matrix with the same transmit and receive elements: sum each pair once, doubled (halves the work).", true),
-             tile}};
+             tile,
+             textParam("excluded_elements", "Excluded elements",
+                       "Elements left out of the sum as transmitter and receiver (apodization weight 0), numbered from 1, e.g. "
+                       "\"3, 17-19\"; empty = none. For weak or dead elements (umbra-cli calibrate --elements).",
+                       "", "")}};
+}
+
+std::vector<int> parseElementList(const std::string& text) {
+    std::vector<int> out;
+    auto bad = [&](const std::string& why) {
+        throw core::SettingError("das.excluded_elements = \"" + text + "\": " + why +
+                                 " (element numbers from 1 and ranges, e.g. \"3, 17-19\")");
+    };
+    std::string item;
+    std::istringstream in(text);
+    while (std::getline(in, item, ',')) {
+        const auto b = item.find_first_not_of(" \t"), e = item.find_last_not_of(" \t");
+        if (b == std::string::npos) {
+            if (text.find_first_not_of(" \t,") == std::string::npos) continue;  // blank list
+            bad("empty item");
+        }
+        item = item.substr(b, e - b + 1);
+        long lo = 0, hi = 0;
+        char* end = nullptr;
+        lo = std::strtol(item.c_str(), &end, 10);
+        if (end == item.c_str()) bad("\"" + item + "\" is not an element number");
+        hi = lo;
+        std::string rest(end);
+        const auto rb = rest.find_first_not_of(" \t");
+        rest = rb == std::string::npos ? std::string() : rest.substr(rb);
+        if (!rest.empty()) {
+            if (rest[0] != '-') bad("\"" + item + "\" is not an element number or range");
+            const std::string tail = rest.substr(1);
+            hi = std::strtol(tail.c_str(), &end, 10);
+            if (end == tail.c_str() || std::string(end).find_first_not_of(" \t") != std::string::npos)
+                bad("\"" + item + "\" is not an element number or range");
+        }
+        if (lo < 1 || hi < lo || hi > 100000) bad("\"" + item + "\" is out of range");
+        for (long k = lo; k <= hi; ++k) out.push_back(int(k - 1));
+    }
+    std::sort(out.begin(), out.end());
+    out.erase(std::unique(out.begin(), out.end()), out.end());
+    return out;
+}
+
+std::string elementListText(const std::vector<int>& zb) {
+    std::vector<int> v = zb;
+    std::sort(v.begin(), v.end());
+    v.erase(std::unique(v.begin(), v.end()), v.end());
+    std::string s;
+    for (size_t i = 0; i < v.size();) {
+        size_t j = i;
+        while (j + 1 < v.size() && v[j + 1] == v[j] + 1) ++j;
+        if (!s.empty()) s += ", ";
+        s += std::to_string(v[i] + 1);
+        if (j > i) {
+            s += '-';
+            s += std::to_string(v[j] + 1);
+        }
+        i = j + 1;
+    }
+    return s;
 }
 
 DasParams dasParams(const core::Recipe& r) {
@@ -63,6 +125,10 @@ DasParams dasParams(const core::Recipe& r) {
     p.coherence_factor = r.flag("das.coherence_factor");
     p.reciprocity = r.flag("das.reciprocity");
     p.tile_pixels = r.integer("das.tile_pixels");
+    if (r.has("das.excluded_elements")) p.excluded_elements = parseElementList(r.text("das.excluded_elements"));
+    if (!p.excluded_elements.empty() && p.method == "wavenumber")
+        throw core::SettingError("das.excluded_elements: excluding elements needs das.method = delay_and_sum "
+                                 "(wavenumber imaging uses every element)");
     if (!(p.f_number > 0) || !std::isfinite(p.f_number))
         throw core::SettingError("das.f_number = " + std::to_string(p.f_number) + ": the f-number must be greater than 0");
     if (p.tile_pixels < 1) throw core::SettingError("das.tile_pixels must be at least 1");

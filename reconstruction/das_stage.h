@@ -34,7 +34,16 @@ struct DasParams {
     bool coherence_factor = false;               ///< multiply the image by the coherence factor
     bool reciprocity = true;  ///< full-matrix: sum tx < rx pairs once, doubled, plus the diagonal (halves the work)
     int tile_pixels = 1024;   ///< pixels per work tile (advanced; the image does not depend on it)
+    /// Elements left out of the sum (0-based here; "3, 17-19" in the recipe counts from 1): their
+    /// apodization weight is 0 as transmitter and receiver (a weak or dead element). Default none.
+    std::vector<int> excluded_elements;
 };
+
+/// Parses an element list such as "3, 17-19" (element numbers from 1, ranges inclusive; "" =
+/// none) into sorted 0-based indices. Throws SettingError naming das.excluded_elements.
+std::vector<int> parseElementList(const std::string& text);
+/// The list as the recipe writes it: 0-based indices -> "3, 17-19" (numbers from 1).
+std::string elementListText(const std::vector<int>& zero_based);
 
 /// Declaration of the "das" stage.
 core::StageSpec dasSpec();

@@ -145,6 +145,7 @@ struct Reconstructor::Impl {
     detail::DasKernels kernels = detail::bestKernels();
     enum class Apod { Rect, Hann, Tukey } apod = Apod::Hann;
     bool full_aperture = false;
+    std::vector<uint8_t> excluded_el;  // per array element: 1 = das.excluded_elements (weight 0)
     bool split_legs = false;  // the view's transmit and receive paths differ (e.g. TT-T): separate transmit tables
     std::unique_ptr<WavenumberImager> wavenumber;  // das.method = wavenumber: replaces the delay-and-sum below
 
@@ -190,6 +191,13 @@ struct Reconstructor::Impl {
             ntx = h.transmits();
             nrx = h.receives();
             return;
+        }
+        excluded_el.assign(h.array.elementCount(), 0);
+        for (int e : das.excluded_elements) {
+            if (size_t(e) >= excluded_el.size())
+                throw core::SettingError("das.excluded_elements: element " + std::to_string(e + 1) + " does not exist (the array has " +
+                                         std::to_string(excluded_el.size()) + " elements)");
+            excluded_el[size_t(e)] = 1;
         }
         ns = h.samples;
         nrx = h.receives();
@@ -337,6 +345,7 @@ struct Reconstructor::Impl {
             float* w = W.w.data() + s * tile_max;
             model->elementTime(pos, size_t(used_el[s]), DelayLeg::Receive, W.x.data(), W.z.data(), n, tof);
             apertureWeights(pos[0], W.x.data(), W.z.data(), n, pitch, xc, half_len, w);
+            if (excluded_el[size_t(used_el[s])]) std::fill(w, w + n, 0.0f);
             W.any[s] = scaleAndCount(tof, ffs, w, n) > 0;
             if (split_legs) {
                 float* tt = W.tof_tx.data() + s * tile_max;

@@ -21,6 +21,7 @@ int cmdBlindCopy(const Argv& args);
 int cmdAgreement(const Argv& args);
 int cmdImport(const Argv& args);
 int cmdExportDicom(const Argv& args);
+int cmdCalibrate(const Argv& args);
 
 struct Command {
     const char* name;

@@ -23,6 +23,7 @@ const std::vector<Command>& commands() {
         {"agreement", "inter-reader agreement of two or more cases on the same captures (kappa, Bland-Altman)", cmdAgreement},
         {"import", "read a DICOM ultrasound image (stored frames) into an image file", cmdImport},
         {"export-dicom", "write an image file's frames as a DICOM ultrasound (multi-frame) image", cmdExportDicom},
+        {"calibrate", "speed of sound from a back wall or two holes, fixed delay, weak or dead elements", cmdCalibrate},
     };
     return table;
 }

@@ -177,7 +177,7 @@ def case_damaged_bytes():
 def case_help():
     rc, out, err = run("--help")
     check(rc == 0 and "usage:" in out, f"umbra-cli --help exit {rc}")
-    for cmd in ("info", "validate", "simulate", "reconstruct", "batch", "measure"):
+    for cmd in ("info", "validate", "simulate", "reconstruct", "batch", "measure", "calibrate"):
         rc, out, err = run(cmd, "--help")
         check(rc == 0, f"{cmd} --help exit {rc}: {err.strip()}")
         check("usage:" in out, f"{cmd} --help prints a usage line")
@@ -272,6 +272,59 @@ def case_measure():
     j = json.loads(out)
     check(rc == 0 and any("point-spread widths unknown" in w for w in j["warnings"]), f"fallback warning: {j['warnings']}")
     rc, out, err = run("measure", os.path.join(d, "missing.h5"), "--tool", "peak", "--box-mm", "0:1:0:1")
+    check(rc == 2 and "missing.h5" in err, f"missing file exit {rc}: {err.strip()}")
+
+
+CALIBRATE_SCENE = {
+    "title": "calibration test plate (synthetic)", "scenario": "unit_test", "seed": 9,
+    "array": {"elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5,
+              "fractional_bandwidth": 0.6},
+    "transmit": {"kind": "single_element"},
+    "sampling": {"frequency_mhz": 50, "samples": 300},
+    "medium": {"speed_m_s": 6100, "thickness_mm": 12},
+    "reflectors": {"back_wall": {"depth_mm": 12}},
+    "noise": {"snr_db": 40, "reference": "peak"},
+}
+
+
+def case_calibrate():
+    """umbra-cli calibrate: the speed of a simulated 12 mm plate (6100 m/s) within its expanded
+    uncertainty (c = 2 d / t, pulse-echo travel time), a zeroed element found dead and excluded in
+    reconstruct, exit 2 for bad requests and a missing file."""
+    d = fresh_dir()
+    scene = os.path.join(d, "scene.json")
+    with open(scene, "w") as f:
+        json.dump(CALIBRATE_SCENE, f)
+    cap, img = os.path.join(d, "cap.h5"), os.path.join(d, "img.h5")
+    rc, out, err = run("simulate", scene, "-o", cap)
+    check(rc == 0, f"simulate exit {rc}: {err}")
+    import h5py
+    with h5py.File(cap, "a") as f:  # element 3 (index 2) silenced as transmitter and receiver
+        rf = f["/data/rf"]
+        rf[0, 2, :, :] = 0
+        rf[0, :, 2, :] = 0
+    rc, out, err = run("calibrate", cap, "--thickness-mm", "12", "--elements", "--json")
+    check(rc == 0, f"calibrate exit {rc}: {err}")
+    j = json.loads(out)
+    c = j["speed_m_s"]
+    check(j["method"] == "back wall", f"method {j['method']} (300 samples hold no repeat)")
+    check(abs(c["value"] - 6100) <= c["expanded_uncertainty"], f"speed {c['value']} +- {c['expanded_uncertainty']} covers 6100")
+    t = j["echoes"][0]["time_us"]
+    check(abs(t - 2 * 12e-3 / 6100 * 1e6) < 0.005, f"echo time {t} us vs 2 d / c = {2 * 12e-3 / 6100 * 1e6:.4f} us")
+    check(j["synthetic"] is True, "labelled synthetic")
+    check(j["exclude"] == "3", f"flagged elements {j['exclude']}")
+    check([e["status"] for e in j["elements"]].count("dead") == 1, "one dead element")
+    rc, out, err = run("calibrate", cap, "--thickness-mm", "12")
+    check(rc == 0 and "m/s (k = 2)" in out and "synthetic" in out, f"readable lines: {out}")
+    rc, out, err = run("reconstruct", cap, "-o", img, "--set", "das.excluded_elements=" + j["exclude"], "--threads", "2")
+    check(rc == 0, f"reconstruct with the element excluded: exit {rc}: {err}")
+    rc, out, err = run("reconstruct", cap, "-o", img, "--set", "das.excluded_elements=17")
+    check(rc == 2 and "das.excluded_elements" in err, f"element beyond the array: exit {rc}: {err.strip()}")
+    for args in ([], ["--thickness-mm", "12", "--holes-mm", "5,10"], ["--holes-mm", "5"], ["--speed", "5900"],
+                 ["--thickness-mm", "-3"], ["--thickness-mm", "40"]):
+        rc, out, err = run("calibrate", cap, *args)
+        check(rc == 2 and err.strip(), f"calibrate {args}: exit {rc}: {err.strip()}")
+    rc, out, err = run("calibrate", os.path.join(d, "missing.h5"), "--thickness-mm", "12")
     check(rc == 2 and "missing.h5" in err, f"missing file exit {rc}: {err.strip()}")
 
 

@@ -75,6 +75,8 @@ CaseDocument fullCase(const fs::path& dir) {
     c1.measurements.push_back({"M2", MeasurementKind::DepthMarker, {{0.1, 12.3}}, "", 3});
     c1.measurements.push_back({"M3", MeasurementKind::ExtentBox, {{-2, 10}, {2.5, 11.75}}, "box", 4});
     c1.measurements.push_back({"M4", MeasurementKind::Ellipse, {{0, 10}, {5, 10}, {0, 13}}, "ellipse", 0});
+    c1.speed_calibration = {"Speed of sound (calibrated from the back wall): 5921 ± 14 m/s (k = 2)"};
+    c1.element_health = {"Elements flagged: 5 dead", "  rule: ..."};
 
     CaseCapture c2;
     c2.path = cap2.string();
@@ -82,6 +84,9 @@ CaseDocument fullCase(const fs::path& dir) {
     c2.view = {0, 1, 0.1 + 0.2, 1.0 / 3.0, ""};  // doubles that need all 17 digits
 
     d.captures = {c1, c2};
+    d.weld = WeldGeometry{};
+    d.weld->shape = WeldShape::X;
+    d.weld->root_face_mm = 1.5;
 
     Finding f1;
     f1.id = "F1";
@@ -140,6 +145,50 @@ TEST(case_file_test, sizing_settings_round_trip) {
     ASSERT_TRUE(back.speed_uncertainty_rel.has_value());
     EXPECT_DOUBLE_EQ(*back.speed_uncertainty_rel, 0.005);
     EXPECT_EQ(caseToJson(CaseDocument{}).find("sizing"), std::string::npos);  // absent when unset
+}
+
+// The weld geometry survives a save and load exactly; a case written before the weld existed
+// (no "weld" key) loads without one; a bad weld value is refused naming its key.
+TEST(case_file_test, weld_geometry_round_trip) {
+    CaseDocument d;
+    WeldGeometry w;
+    w.shape = WeldShape::U;
+    w.thickness_mm = 25.4;
+    w.centre_x_mm = -3.25;
+    w.bevel_angle_deg = 10;
+    w.root_gap_mm = 0.5;
+    w.root_face_mm = 1.5;
+    w.groove_radius_mm = 6.35;
+    w.cap_width_mm = 19;
+    w.cap_height_mm = 1.2;
+    w.root_width_mm = 4;
+    w.root_height_mm = 0.8;
+    d.weld = w;
+    const std::string text = caseToJson(d);
+    const CaseDocument back = caseFromJson(text, "mem");
+    ASSERT_TRUE(back.weld.has_value());
+    EXPECT_TRUE(*back.weld == w);
+    EXPECT_EQ(caseToJson(back), text);
+    EXPECT_EQ(caseToJson(CaseDocument{}).find("weld"), std::string::npos);  // absent when unset
+    const CaseDocument old = caseFromJson("{\"format\": \"umbracase\", \"version\": 1, \"captures\": []}", "old");
+    EXPECT_FALSE(old.weld.has_value());
+
+    auto problem = [&](const std::string& from, const std::string& to) {
+        std::string s = text;
+        const size_t p = s.find(from);
+        EXPECT_NE(p, std::string::npos) << from;
+        s.replace(p, from.size(), to);
+        try {
+            caseFromJson(s, "w.umbracase");
+        } catch (const InputError& e) {
+            return e.problems().at(0).where;
+        }
+        return std::string("no error");
+    };
+    EXPECT_EQ(problem("\"shape\": \"U\"", "\"shape\": \"K\""), "weld.shape");
+    EXPECT_EQ(problem("\"root_face_mm\": 1.5", "\"root_face_mm\": 30"), "weld.root_face_mm");
+    EXPECT_EQ(problem("\"bevel_angle_deg\": 10.0", "\"bevel_angle_deg\": 95"), "weld.bevel_angle_deg");
+    EXPECT_EQ(problem("\"thickness_mm\": 25.4", "\"thickness_mm\": \"thick\""), "weld.thickness_mm");
 }
 
 TEST(case_file_test, capture_paths_are_stored_relative_to_the_case) {

@@ -14,6 +14,7 @@
 
 #include "core/drop_sizing.h"
 #include "core/error.h"
+#include "reconstruction/calibration.h"
 #include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
@@ -884,6 +885,7 @@ QString CaseController::budgetText(const std::string& id) const {
                          .arg(s->resolution.axial_mm, 0, 'f', 2);
         for (const auto& w : s->warnings) parts << tr("Warning: %1").arg(QString::fromStdString(w));
     }
+    if (const QString cw = coverageWarning(*m); !cw.isEmpty()) parts << tr("Warning: %1").arg(cw);
     parts << tr("Expanded uncertainties use k = 2 (about 95 %). A sizing aid: the written procedure, the applicable code and "
                 "qualified people decide.");
     return parts.join(QStringLiteral("\n\n"));
@@ -983,6 +985,145 @@ void CaseController::editCurve(const std::optional<core::DistanceAmplitudeCurve>
     if (c == doc_.curve) return;
     undo_.push(new ValueCommand<std::optional<core::DistanceAmplitudeCurve>>(
         what, doc_.curve, c, [this](const std::optional<core::DistanceAmplitudeCurve>& v) { setCurve(v); }));
+}
+
+namespace {
+using CalibrationLines = std::pair<std::vector<std::string>, std::vector<std::string>>;  // speed, elements
+}
+
+std::optional<core::MeasuredValue> CaseController::calibrateSpeed(double thickness_mm, double tol_mm, QString* why) {
+    if (!reader_) {
+        if (why) *why = tr("Open a capture first.");
+        return std::nullopt;
+    }
+    try {
+        const auto c = recon::speedFromBackWall(*reader_, thickness_mm * 1e-3, tol_mm * 1e-3, frame_);
+        std::vector<std::string> lines = recon::calibrationLines(c);
+        lines.front() += " (frame " + std::to_string(frame_ + 1) + ", plate " +
+                         core::formatWithUncertainty(thickness_mm, tol_mm, "mm") + ")";
+        const CalibrationLines before{active().speed_calibration, active().element_health};
+        const CalibrationLines after{lines, before.second};
+        undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the speed of sound"), before, after,
+                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                          active().speed_calibration = v.first;
+                                                          active().element_health = v.second;
+                                                          emit caseChanged();
+                                                      })));
+        return c.speed;
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromUtf8(e.what());
+        return std::nullopt;
+    }
+}
+
+std::optional<std::vector<int>> CaseController::checkElements(QString* why) {
+    if (!reader_) {
+        if (why) *why = tr("Open a capture first.");
+        return std::nullopt;
+    }
+    try {
+        const auto h = recon::elementHealth(*reader_, frame_);
+        std::vector<std::string> lines = recon::healthLines(h);
+        lines.front() += " (frame " + std::to_string(frame_ + 1) + ")";
+        const CalibrationLines before{active().speed_calibration, active().element_health};
+        const CalibrationLines after{before.first, lines};
+        undo_.push(new ValueCommand<CalibrationLines>(tr("Check the elements"), before, after,
+                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                          active().speed_calibration = v.first;
+                                                          active().element_health = v.second;
+                                                          emit caseChanged();
+                                                      })));
+        return h.flagged();
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromUtf8(e.what());
+        return std::nullopt;
+    }
+}
+
+std::vector<std::string> CaseController::calibrationLines() const {
+    const core::CaseCapture* c = activeOrNull();
+    if (!c) return {};
+    std::vector<std::string> out = c->speed_calibration;
+    out.insert(out.end(), c->element_health.begin(), c->element_health.end());
+    return out;
+}
+
+const recon::CoverageMap* CaseController::coverage() const {
+    if (!reader_ || !envelope_ || envelope_->nx() < 2 || envelope_->nz() < 2) return nullptr;
+    const std::string mode = recipe_.has("delay_model.mode") ? recipe_.text("delay_model.mode") : "L-L";
+    recon::Grid g;
+    g.x_min_m = envelope_->x_m.front();
+    g.x_max_m = envelope_->x_m.back();
+    g.z_min_m = envelope_->z_m.front();
+    g.z_max_m = envelope_->z_m.back();
+    g.step_m = std::max(envelope_->x_m[1] - envelope_->x_m[0], kCoverageStepMm * 1e-3);
+    std::ostringstream key;
+    key.precision(17);
+    key << reader_->path() << '|' << mode << '|' << g.x_min_m << '|' << g.x_max_m << '|' << g.z_min_m << '|' << g.z_max_m << '|'
+        << g.step_m << '|' << speedMps();
+    if (coverage_ && coverage_key_ == key.str()) return &*coverage_;
+    coverage_.reset();
+    coverage_key_ = key.str();
+    try {
+        recon::CoverageOptions o;
+        o.threads = 2;
+        coverage_ = recon::coverageMap(reader_->header(), mode, g, o, &recipe_);
+    } catch (const std::exception&) {
+        return nullptr;  // the view cannot be mapped for this capture: no contours, no warning
+    }
+    return &*coverage_;
+}
+
+std::optional<double> CaseController::coverageDbAt(double x_mm, double z_mm) const {
+    const recon::CoverageMap* c = coverage();
+    if (!c || c->x_m.size() < 2 || c->z_m.size() < 2) return std::nullopt;
+    double fx = (x_mm * 1e-3 - c->x_m.front()) / (c->x_m[1] - c->x_m[0]);
+    double fz = (z_mm * 1e-3 - c->z_m.front()) / (c->z_m[1] - c->z_m[0]);
+    const double mx = double(c->x_m.size() - 1), mz = double(c->z_m.size() - 1), eps = 1e-6;
+    if (fx < -eps || fz < -eps || fx > mx + eps || fz > mz + eps) return std::nullopt;
+    fx = std::clamp(fx, 0.0, mx);
+    fz = std::clamp(fz, 0.0, mz);
+    const size_t ix = std::min(size_t(fx), c->x_m.size() - 2), iz = std::min(size_t(fz), c->z_m.size() - 2);
+    const double ax = fx - double(ix), az = fz - double(iz);
+    return (1 - az) * ((1 - ax) * c->at(iz, ix) + ax * c->at(iz, ix + 1)) + az * ((1 - ax) * c->at(iz + 1, ix) + ax * c->at(iz + 1, ix + 1));
+}
+
+QString CaseController::coverageWarning(const core::Measurement& m) const {
+    if (m.points.empty()) return {};
+    double x = 0, z = 0;
+    for (const auto& p : m.points) {
+        x += p.x_mm;
+        z += p.z_mm;
+    }
+    x /= double(m.points.size());
+    z /= double(m.points.size());
+    const auto db = coverageDbAt(x, z);
+    if (!db || *db >= -6.0) return {};
+    return tr("Outside the −6 dB coverage of view %1 (%2 dB at its centre): the view is weak there; confirm with another view")
+        .arg(QString::fromStdString(coverage_ ? coverage_->mode : std::string("?")))
+        .arg(*db, 0, 'f', 1);
+}
+
+void CaseController::editWeld(const std::optional<core::WeldGeometry>& w, const QString& what) {
+    if (w) core::checkWeld(*w);  // throws SettingError before anything changes
+    if (w == doc_.weld) return;
+    undo_.push(new ValueCommand<std::optional<core::WeldGeometry>>(
+        what, doc_.weld, w, [this](const std::optional<core::WeldGeometry>& v) { setWeld(v); }));
+}
+
+void CaseController::setWeld(const std::optional<core::WeldGeometry>& w) {
+    doc_.weld = w;
+    emit weldChanged();
+}
+
+std::vector<core::WeldPolyline> CaseController::weldOverlay() const {
+    if (!doc_.weld) return {};
+    double x0 = doc_.weld->centre_x_mm - 50, x1 = doc_.weld->centre_x_mm + 50;
+    if (envelope_ && envelope_->nx() > 1) {
+        x0 = std::min(x0, envelope_->x_m.front() * 1e3);
+        x1 = std::max(x1, envelope_->x_m.back() * 1e3);
+    }
+    return core::weldOverlay(*doc_.weld, x0, x1);
 }
 
 void CaseController::setCurve(const std::optional<core::DistanceAmplitudeCurve>& c) {
@@ -1208,6 +1349,8 @@ std::string CaseController::addFindingFromMeasurement(const std::string& measure
     f.number = 1;
     for (const auto& x : doc_.findings) f.number = std::max(f.number, x.number + 1);
     f.indication = indicationFrom(measurement(measurement_id));
+    if (const core::Measurement* m = measurement(measurement_id))
+        if (const QString cw = coverageWarning(*m); !cw.isEmpty()) f.indication.description = cw.toStdString() + ".";
     auto after = doc_.findings;
     after.push_back(f);
     editFindings(after, tr("Add finding %1").arg(f.number));
@@ -1334,6 +1477,8 @@ QString CaseController::techniqueText() const {
                      .arg(envelope_->z_m.back() * 1e3, 0, 'f', 1)
                      .arg(fidelity_db_, 0, 'f', 2);
     lines << tr("TCG: %1").arg(tgcText());
+    for (const auto& l : calibrationLines()) lines << QString::fromStdString(l);
+    if (doc_.weld) lines << QString::fromStdString(core::weldSummary(*doc_.weld));
     if (h.isSynthetic()) lines << tr("Data: synthetic demonstration data (simulated capture)");
     return lines.join('\n');
 }

@@ -23,6 +23,7 @@
 #include "core/measurement.h"
 #include "core/parameters.h"
 #include "core/sizing.h"
+#include "reconstruction/coverage.h"
 #include "reconstruction/sizing_setup.h"
 #include "ui/controller/beamform_worker.h"
 
@@ -267,6 +268,41 @@ public:
     /// The TCG actually applied: mode, and for attenuation the α and f used with their sources.
     QString tgcText() const;
 
+    // ------------------------------------------------------------------ calibration
+    /// Speed of sound from the back wall of a plate `thickness_mm` thick (± tol_mm) on the
+    /// current frame of the active capture (recon::speedFromBackWall). Its lines go into the
+    /// capture's calibration and the technique block (undoable). nullopt with `why` when it
+    /// cannot be done (no capture, not a full matrix, no echo).
+    std::optional<core::MeasuredValue> calibrateSpeed(double thickness_mm, double tol_mm, QString* why = nullptr);
+    /// Weak and dead elements of the current frame (recon::elementHealth); lines recorded like
+    /// calibrateSpeed. Returns the flagged elements (0-based); nullopt with `why` on failure.
+    std::optional<std::vector<int>> checkElements(QString* why = nullptr);
+    /// Calibration lines of the active capture (speed, then elements).
+    std::vector<std::string> calibrationLines() const;
+
+    // ------------------------------------------------------------------ coverage
+    /// Sensitivity map of the recipe's view (delay_model.mode) over the image region, on a grid of
+    /// at most kCoverageStepMm (recon::coverageMap; computed on first use and cached per capture,
+    /// view and region). nullptr without an image or when the view cannot be mapped.
+    const recon::CoverageMap* coverage() const;
+    static constexpr double kCoverageStepMm = 0.25;
+    /// Coverage in dB at a point (bilinear), nullopt outside the map.
+    std::optional<double> coverageDbAt(double x_mm, double z_mm) const;
+    /// "Outside the −6 dB coverage of view L-L (−8.3 dB at its centre)" when the centre of the
+    /// measurement's points lies below −6 dB of the view's sensitivity; "" otherwise.
+    QString coverageWarning(const core::Measurement& m) const;
+
+    // ------------------------------------------------------------------ weld overlay
+    /// The case's weld geometry (drawn over every view), if entered.
+    const std::optional<core::WeldGeometry>& weld() const { return doc_.weld; }
+    /// Undoable replacement (nullopt removes the overlay). Throws core::SettingError naming the
+    /// field when the geometry is not valid; the case is then unchanged.
+    void editWeld(const std::optional<core::WeldGeometry>& w, const QString& what);
+    void setWeld(const std::optional<core::WeldGeometry>& w);  ///< no undo (commands use it)
+    /// Overlay polylines (direct, first and second skip) spanning the current image's x range;
+    /// empty without a weld.
+    std::vector<core::WeldPolyline> weldOverlay() const;
+
     // ------------------------------------------------------------------ view state
     core::ViewState viewState() const { return view_; }
     /// Stored with the case; the image view pushes it here (not an undoable edit).
@@ -282,6 +318,7 @@ signals:
     void selectionChanged(QString id);
     void findingsChanged();
     void curveChanged();          ///< distance–amplitude curve set, changed or cleared
+    void weldChanged();           ///< weld geometry set, changed or removed
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
@@ -335,6 +372,8 @@ private:
     FramePtr envelope_;
     std::vector<float> db_;
     std::vector<float> tgc_amp_;
+    mutable std::optional<recon::CoverageMap> coverage_;  ///< cache for coverage()
+    mutable std::string coverage_key_;                    ///< capture, view and region it was made for
     mutable std::optional<recon::SizingSetup> sizing_setup_;  ///< cache; reset when tgc_amp_ changes
     QImage image_;
     QImage top_image_;

@@ -63,6 +63,9 @@
 #include "ui/trace/trace_view.h"
 #include "ui/viewer/cine_controls.h"
 #include "ui/viewer/image_view.h"
+#include "ui/weld/weld_dialog.h"
+#include "reconstruction/das_stage.h"
+#include "core/uncertainty.h"
 
 namespace umbra::ui {
 
@@ -220,6 +223,25 @@ void MainWindow::buildDocks() {
     resizeDocks({fd}, {390}, Qt::Horizontal);
 }
 
+void MainWindow::editWeld() {
+    core::WeldGeometry w;
+    if (ctl_->weld()) {
+        w = *ctl_->weld();
+    } else if (ctl_->hasCapture() && ctl_->header().medium.thickness_m) {
+        w.thickness_mm = *ctl_->header().medium.thickness_m * 1e3;
+    }
+    WeldDialog dlg(w, ctl_->weld().has_value(), this);
+    if (dlg.exec() != QDialog::Accepted) return;
+    try {
+        if (dlg.removeRequested())
+            ctl_->editWeld(std::nullopt, tr("Remove the weld overlay"));
+        else
+            ctl_->editWeld(dlg.geometry(), ctl_->weld() ? tr("Edit the weld geometry") : tr("Enter the weld geometry"));
+    } catch (const core::SettingError& e) {
+        showError(tr("Weld geometry"), QString::fromUtf8(e.what()));
+    }
+}
+
 void MainWindow::buildActions() {
     QMenu* file = menuBar()->addMenu(tr("&File"));
     QAction* a = file->addAction(tr("&Open capture, case or DICOM image…"), this, &MainWindow::open);
@@ -356,6 +378,63 @@ void MainWindow::buildActions() {
         ctl_->setSpeedUncertainty(med, std::abs(pct - def) < 1e-9 ? std::nullopt : std::optional<double>(pct / 100));
     });
     a->setToolTip(tr("The case's relative uncertainty of the speed of sound, used in every depth's uncertainty budget"));
+    a = tools->addAction(tr("Calibrate speed from &back wall…"), this, [this] {
+        double d = 20;
+        if (ctl_->weld()) d = ctl_->weld()->thickness_mm;
+        else if (ctl_->hasCapture() && ctl_->header().medium.thickness_m) d = *ctl_->header().medium.thickness_m * 1e3;
+        bool ok = false;
+        d = QInputDialog::getDouble(this, tr("Calibrate speed of sound"), tr("Plate thickness under the array, mm:"), d, 0.1, 1000, 3, &ok);
+        if (!ok) return;
+        const double tol = QInputDialog::getDouble(this, tr("Calibrate speed of sound"),
+                                                   tr("Tolerance of the thickness, ± mm (as measured, e.g. micrometer):"), 0.05, 0, 10, 3, &ok);
+        if (!ok) return;
+        QString why;
+        const auto c = ctl_->calibrateSpeed(d, tol, &why);
+        if (!c) {
+            showError(tr("Calibrate speed of sound"), why);
+            return;
+        }
+        const QString text = QString::fromStdString(core::formatWithUncertainty(c->value, c->budget.expanded(), "m/s"));
+        const auto r = core::roundToUncertainty(c->value, c->budget.expanded());
+        if (QMessageBox::question(this, tr("Calibrate speed of sound"),
+                                  tr("Speed of sound from the back wall: %1 (k = 2). It is recorded in the technique block.\n\n"
+                                     "Use %2 m/s for the reconstruction?").arg(text, QString::fromStdString(r.value_text))) ==
+            QMessageBox::Yes) {
+            try {
+                ctl_->editRecipeValue("delay_model.speed_of_sound_m_s", r.value_text);
+            } catch (const std::exception& e) {
+                showError(tr("Calibrate speed of sound"), QString::fromUtf8(e.what()));
+            }
+        }
+    });
+    a->setToolTip(tr("c = 2 d / t from the back-wall echo of the pulse-echo traces (and its repeat when recorded), with its uncertainty"));
+    a = tools->addAction(tr("Check &elements…"), this, [this] {
+        QString why;
+        const auto flagged = ctl_->checkElements(&why);
+        if (!flagged) {
+            showError(tr("Check elements"), why);
+            return;
+        }
+        QStringList lines;
+        for (const auto& l : ctl_->calibrationLines()) lines << QString::fromStdString(l);
+        if (flagged->empty()) {
+            QMessageBox::information(this, tr("Check elements"), lines.join('\n'));
+            return;
+        }
+        const QString list = QString::fromStdString(recon::elementListText(*flagged));
+        if (QMessageBox::question(this, tr("Check elements"),
+                                  lines.join('\n') + tr("\n\nExclude elements %1 from the sum (das.excluded_elements)?").arg(list)) ==
+            QMessageBox::Yes) {
+            try {
+                ctl_->editRecipeValue("das.excluded_elements", list.toStdString());
+            } catch (const std::exception& e) {
+                showError(tr("Check elements"), QString::fromUtf8(e.what()));
+            }
+        }
+    });
+    a->setToolTip(tr("Weak and dead elements from the full matrix's transmit and receive energies"));
+    a = tools->addAction(tr("&Weld geometry…"), this, &MainWindow::editWeld);
+    a->setToolTip(tr("Plate thickness, weld centre, bevel, root and cap: drawn over every view with the back wall and its skip images"));
     a = tools->addAction(tr("Size the selected box tip to tip"), this, [this] {
         ctl_->changeSizingKind(ctl_->selectedMeasurement().toStdString(), core::MeasurementKind::TipSizing);
     });
@@ -411,6 +490,16 @@ void MainWindow::buildActions() {
         if (ctl_->currentFrame() > 0) ctl_->setCurrentFrame(ctl_->currentFrame() - 1);
     });
     a->setShortcut(QKeySequence(Qt::Key_PageUp));
+    a = view->addAction(tr("&Weld overlay"), view_, &ImageView::setWeldVisible);
+    a->setCheckable(true);
+    a->setChecked(view_->weldVisible());
+    a->setShortcut(QKeySequence(Qt::Key_W));
+    a->setToolTip(tr("Show the case's weld geometry over the image (Tools → Weld geometry… to enter it)"));
+    a = view->addAction(tr("Co&verage contours"), view_, &ImageView::setCoverageVisible);
+    a->setCheckable(true);
+    a->setChecked(view_->coverageVisible());
+    a->setToolTip(tr("−6 dB (dashed) and −12 dB (dotted) contours of the view's sensitivity: element directivity, spreading and "
+                     "interface losses for a point reflector (reconstruction/coverage.h). A measurement outside −6 dB is warned about."));
     a = view->addAction(tr("&Cancel reconstruction"), ctl_, &CaseController::cancelReconstruction);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_Period));
     view->addSeparator();
@@ -1114,6 +1203,16 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
                       "Press E and drag from its centre to its edge to measure it with an ellipse.");
         }
         ctl_->setCaseText(t);
+        if (weld) {
+            // The coupon's weld as its scene describes it: single V in 20 mm plate, 30° bevels,
+            // 2 mm root gap, no root face, ground flush, centred at x = 0.
+            core::WeldGeometry g;
+            g.shape = core::WeldShape::V;
+            g.thickness_mm = 20;
+            g.bevel_angle_deg = 30;
+            g.root_gap_mm = 2;
+            ctl_->setWeld(g);
+        }
     } catch (const std::exception& e) {
         showError(tr("Cannot open the demo"), QString::fromStdString(e.what()));
         return false;

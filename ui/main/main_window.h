@@ -134,6 +134,7 @@ private:
     void addFindingFromSelection();
     void addCurvePointFromSelection();
     void makeTcgFromCurve();
+    void editWeld();
     void updateReferenceWarning();
     void setTool(Tool t);
     /// Folder of the case file, else of the active capture ("" when neither): where file

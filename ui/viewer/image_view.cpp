@@ -41,6 +41,8 @@ ImageView::ImageView(CaseController* controller, QWidget* parent) : QWidget(pare
     connect(ctl_, &CaseController::measurementsChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::selectionChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::findingsChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::weldChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::caseChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::captureChanged, this, [this] {
         last_extent_ = QRectF();
         pending_view_ = ctl_->viewState();
@@ -161,6 +163,14 @@ Scene ImageView::scene() const {
                 s.quantities[m.id] = ctl_->quantities(m);
             }
         }
+    if (show_weld_) s.weld = ctl_->weldOverlay();
+    if (show_coverage_)
+        if (const recon::CoverageMap* c = ctl_->coverage()) {
+            std::vector<double> xs, zs;
+            for (double v : c->x_m) xs.push_back(v * 1e3);
+            for (double v : c->z_m) zs.push_back(v * 1e3);
+            for (float level : {-6.0f, -12.0f}) s.coverage.emplace_back(level, isoSegments(xs, zs, c->db, level));
+        }
     s.uncertainty = ctl_->uncertaintyModel();
     s.selected = ctl_->selectedMeasurement();
     for (const auto& f : ctl_->findings())
@@ -179,6 +189,16 @@ void ImageView::paintEvent(QPaintEvent*) {
     if (vt_.viewport() != imageArea(QRectF(rect()), style_)) updateLayout();
     const Scene s = scene();
     paintScene(p, QRectF(rect()), vt_, s, style_);
+}
+
+void ImageView::setCoverageVisible(bool on) {
+    show_coverage_ = on;
+    update();
+}
+
+void ImageView::setWeldVisible(bool on) {
+    show_weld_ = on;
+    update();
 }
 
 std::optional<float> ImageView::dbAt(const QPointF& mm) const {

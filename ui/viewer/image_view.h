@@ -41,6 +41,12 @@ public:
     Scene scene() const;
     /// Image-plane position (mm) of a widget pixel.
     QPointF mmAt(const QPointF& px) const { return vt_.toMm(px); }
+    /// Weld overlay shown (the case's weld geometry, when it has one).
+    bool weldVisible() const { return show_weld_; }
+    void setWeldVisible(bool on);
+    /// −6 dB and −12 dB contours of the view's sensitivity (coverage) map over the image.
+    bool coverageVisible() const { return show_coverage_; }
+    void setCoverageVisible(bool on);
     /// Displayed dB at a position (mm) on the current frame, if inside the image.
     std::optional<float> dbAt(const QPointF& mm) const;
 
@@ -86,6 +92,8 @@ private:
     int drag_index_ = -1;
     core::Measurement drag_origin_;
     bool space_down_ = false;
+    bool show_weld_ = true;
+    bool show_coverage_ = false;
 };
 
 }  // namespace umbra::ui

@@ -354,6 +354,76 @@ void drawColourBar(QPainter& p, const QRectF& bar, const Scene& sc, const SceneS
 
 }  // namespace
 
+QPen weldPen(const core::WeldPolyline& l, double k) {
+    QColor c;
+    switch (l.kind) {
+    case core::WeldLineKind::FusionFace: c = QColor(120, 235, 200); break;
+    case core::WeldLineKind::Cap:
+    case core::WeldLineKind::Root: c = QColor(240, 215, 120); break;
+    case core::WeldLineKind::BackWall:
+    case core::WeldLineKind::Surface: c = QColor(225, 228, 235); break;
+    }
+    c.setAlpha(l.skip == 0 ? 230 : 150);
+    QPen pen(c, (l.skip == 0 ? 1.4 : 1.1) * k);
+    pen.setCosmetic(false);
+    if (l.skip > 0) pen.setStyle(Qt::DashLine);
+    if (l.kind == core::WeldLineKind::BackWall || l.kind == core::WeldLineKind::Surface) pen.setStyle(Qt::DashDotLine);
+    return pen;
+}
+
+std::vector<QLineF> isoSegments(const std::vector<double>& xs, const std::vector<double>& zs, const std::vector<float>& v, float level) {
+    std::vector<QLineF> out;
+    const size_t nx = xs.size(), nz = zs.size();
+    if (nx < 2 || nz < 2 || v.size() != nx * nz) return out;
+    auto val = [&](size_t iz, size_t ix) { return double(v[iz * nx + ix]); };
+    for (size_t iz = 0; iz + 1 < nz; ++iz)
+        for (size_t ix = 0; ix + 1 < nx; ++ix) {
+            // Corners counter-clockwise: (ix, iz), (ix+1, iz), (ix+1, iz+1), (ix, iz+1).
+            const double c[4] = {val(iz, ix), val(iz, ix + 1), val(iz + 1, ix + 1), val(iz + 1, ix)};
+            const QPointF p[4] = {{xs[ix], zs[iz]}, {xs[ix + 1], zs[iz]}, {xs[ix + 1], zs[iz + 1]}, {xs[ix], zs[iz + 1]}};
+            int mask = 0;
+            for (int k = 0; k < 4; ++k)
+                if (c[k] >= level) mask |= 1 << k;
+            if (mask == 0 || mask == 15) continue;
+            auto edge = [&](int k) {  // crossing on edge k (corner k to k+1)
+                const int a = k, b = (k + 1) % 4;
+                const double t = (level - c[a]) / (c[b] - c[a]);
+                return p[a] + (p[b] - p[a]) * t;
+            };
+            std::vector<int> edges;
+            for (int k = 0; k < 4; ++k)
+                if (((mask >> k) & 1) != ((mask >> ((k + 1) % 4)) & 1)) edges.push_back(k);
+            if (edges.size() == 2) {
+                out.emplace_back(edge(edges[0]), edge(edges[1]));
+            } else if (edges.size() == 4) {  // saddle
+                const bool centre_in = (c[0] + c[1] + c[2] + c[3]) / 4 >= level;
+                const bool first_in = mask & 1;
+                if (centre_in == first_in) {
+                    out.emplace_back(edge(0), edge(1));
+                    out.emplace_back(edge(2), edge(3));
+                } else {
+                    out.emplace_back(edge(3), edge(0));
+                    out.emplace_back(edge(1), edge(2));
+                }
+            }
+        }
+    return out;
+}
+
+namespace {
+void drawWeld(QPainter& p, const ViewTransform& vt, const std::vector<core::WeldPolyline>& lines, double k) {
+    p.save();
+    p.setBrush(Qt::NoBrush);
+    for (const auto& l : lines) {
+        QPolygonF poly;
+        for (const auto& pt : l.points) poly << vt.toPixel(QPointF(pt.x_mm, pt.z_mm));
+        p.setPen(weldPen(l, k));
+        p.drawPolyline(poly);
+    }
+    p.restore();
+}
+}  // namespace
+
 void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const Scene& sc, const SceneStyle& st) {
     const double k = st.scale;
     p.save();
@@ -381,6 +451,18 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
     p.fillRect(area, st.label_text_dark ? QColor(236, 236, 236) : QColor(8, 9, 12));
     p.setRenderHint(QPainter::SmoothPixmapTransform, vt.pixelsPerMm() * sc.extent_mm.width() / sc.image->width() < 6);
     p.drawImage(img, *sc.image);
+    if (!sc.weld.empty()) {
+        p.save();
+        p.setClipRect(area.intersected(img));  // only over the image: no lines over empty margins
+        drawWeld(p, vt, sc.weld, k);
+        p.restore();
+    }
+    for (const auto& [level, segs] : sc.coverage) {
+        QPen pen(level > -9 ? QColor(255, 170, 60, 220) : QColor(255, 120, 200, 180), 1.3 * k);
+        pen.setStyle(level > -9 ? Qt::DashLine : Qt::DotLine);
+        p.setPen(pen);
+        for (const auto& l : segs) p.drawLine(QLineF(vt.toPixel(l.p1()), vt.toPixel(l.p2())));
+    }
     for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, st);
     p.restore();
 

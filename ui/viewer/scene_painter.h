@@ -4,6 +4,7 @@
 // exports) a scale bar and caption. Shared by the on-screen image view and the PNG export so
 // both look the same.
 #include <QColor>
+#include <QLineF>
 #include <QImage>
 #include <QPainter>
 #include <QRectF>
@@ -17,6 +18,7 @@
 
 #include "core/measurement.h"
 #include "core/sizing.h"
+#include "core/weld_geometry.h"
 #include "ui/viewer/view_transform.h"
 
 namespace umbra::ui {
@@ -35,10 +37,18 @@ struct Scene {
     /// Quantities per measurement id when they need the image (−6 dB sizing); else evaluate().
     std::map<std::string, std::vector<core::Quantity>> quantities;
     std::map<std::string, core::SizingResult> sizings;  ///< image sizing results (drop edges, tips) by measurement id
+    std::vector<core::WeldPolyline> weld;               ///< weld overlay (specimen frame, mm); empty = none
+    /// Coverage contours: level (dB re the view's best pixel) and its segments in mm.
+    std::vector<std::pair<double, std::vector<QLineF>>> coverage;
 };
 
 /// Colours around the image: dark (screen) or light (print: white paper, dark text).
 enum class Theme { Dark, Light };
+
+/// Segments (mm) of the iso-line `level` of a map v[iz][ix] on axes x_mm, z_mm: marching
+/// squares with linear interpolation along each cell edge (saddles split by the cell mean).
+std::vector<QLineF> isoSegments(const std::vector<double>& x_mm, const std::vector<double>& z_mm, const std::vector<float>& v,
+                                float level);
 
 /// Layout and look of one rendering.
 struct SceneStyle {
@@ -76,6 +86,8 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& view, con
 /// `q`: the measurement's quantities when known (−6 dB sizing), else core::evaluate is used.
 QString measurementLabel(const core::Measurement& m, const core::UncertaintyModel& u,
                          const std::vector<core::Quantity>* q = nullptr);
+/// Pen of a weld overlay line: fusion faces, cap/root and plate boundaries apart; skips dashed.
+QPen weldPen(const core::WeldPolyline& l, double scale);
 /// Colour of a measurement kind on the image.
 QColor measurementColour(core::MeasurementKind kind);
 /// "Nice" tick step (1, 2 or 5 × 10^n) for about `count` ticks over `span`.
