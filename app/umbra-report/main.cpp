@@ -12,6 +12,7 @@
 #include "args.h"
 #include "core/case_file.h"
 #include "core/error.h"
+#include "ui/report/agreement_section.h"
 #include "ui/report/report.h"
 
 int main(int argc, char** argv) {
@@ -20,8 +21,10 @@ int main(int argc, char** argv) {
         {"-o", "REPORT.pdf", "PDF to write (required)"},
         {"--threads", "N", "worker threads for the reconstruction (default: all cores)"},
         {"--image-width", "PX", "width of each annotated image in pixels (default 1600, printed 170 mm wide)"},
+        {"--second-reading", "CASE", "another reading of the same captures (e.g. a blind re-read): adds the agreement section",
+         true},
     };
-    const char* usage = "umbra-cli report CASE.umbracase -o REPORT.pdf [--threads N] [--image-width PX]";
+    const char* usage = "umbra-cli report CASE.umbracase -o REPORT.pdf [--threads N] [--image-width PX] [--second-reading CASE ...]";
     std::vector<std::string> args(argv + 1, argv + argc);
     try {
         cli::Args a(args, specs, 0, 1);
@@ -47,10 +50,14 @@ int main(int argc, char** argv) {
         settings.isolated_check = true;  // no other thread uses HDF5 yet
         // Load and check everything that can fail on bad input before Qt starts.
         const core::CaseDocument doc = core::loadCase(a.positional()[0]);
+        std::vector<core::CaseDocument> others;
+        const std::vector<std::string> other_names = a.values("--second-reading");
+        for (const auto& p : other_names) others.push_back(core::loadCase(p));
         if (!std::getenv("QT_QPA_PLATFORM")) setenv("QT_QPA_PLATFORM", "offscreen", 1);
         int qargc = 1;
         QGuiApplication app(qargc, argv);
-        const ui::report::Report r(doc, QString::fromStdString(a.positional()[0]), settings);
+        ui::report::Report r(doc, QString::fromStdString(a.positional()[0]), settings);
+        if (!others.empty()) r.appendSection(ui::report::agreementSection(doc, a.positional()[0], others, other_names));
         r.writePdf(QString::fromStdString(*out));
         std::printf("report written to %s (%zu finding(s)%s)\n", out->c_str(), doc.findings.size(),
                     r.synthetic() ? ", synthetic data" : "");

@@ -215,5 +215,32 @@ def case_report_missing_capture():
     check(rc == 2 and "-o" in err, f"no -o: exit {rc} {err}")
 
 
+def case_report_second_reading():
+    """A second reading of the same capture (the interpretation of F2 differs): the report gains
+    the inter-reader agreement section; a reading of another capture is refused (exit 2)."""
+    d = fresh_dir()
+    path, cap, case = write_case(d)
+    second = json.loads(json.dumps(case))
+    second["title"] = "Blind re-read"
+    second["findings"][1]["interpretation"] = {"class": "non-relevant", "reason": "surface echo"}
+    second_path = os.path.join(d, "second.umbracase")
+    with open(second_path, "w") as f:
+        json.dump(second, f, indent=2)
+    pdf = os.path.join(d, "report.pdf")
+    rc, out, err = run("report", path, "-o", pdf, "--second-reading", second_path, timeout=300)
+    check(rc == 0, f"report exit {rc}: {err}")
+    flat = unicodedata.normalize("NFKC", " ".join(pdf_text(pdf).split()))
+    a, c = flat.find("Inter-reader agreement"), flat.find("Cautions")
+    check(a >= 0 and c > a, "agreement section present, before the cautions")
+    check("kappa" in flat[a:c].lower(), "kappa reported in the agreement section")
+    other = dict(second)
+    other["captures"] = [dict(second["captures"][0], sha256="0" * 64)]
+    other_path = os.path.join(d, "other.umbracase")
+    with open(other_path, "w") as f:
+        json.dump(other, f, indent=2)
+    rc, out, err = run("report", path, "-o", os.path.join(d, "r2.pdf"), "--second-reading", other_path, timeout=300)
+    check(rc == 2, f"reading of another capture: exit {rc} {err}")
+
+
 if __name__ == "__main__":
     main(globals())
