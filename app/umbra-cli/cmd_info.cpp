@@ -22,6 +22,8 @@ std::string fmt(double v, int prec = 3) {
     return os.str();
 }
 
+}  // namespace
+
 int headerSeconds() {
     if (const char* e = std::getenv("UMBRA_HEADER_TIMEOUT_S")) {
         int v = std::atoi(e);
@@ -30,35 +32,8 @@ int headerSeconds() {
     return 30;
 }
 
-}  // namespace
-
 std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full) {
     return core::checkCaptureIsolated(path, full, headerSeconds());
-}
-
-int cmdValidate(const Argv& argv) {
-    const std::vector<OptionSpec> specs = {{"--quiet", "", "print nothing for a valid file"}};
-    const char* usage = "umbra-cli validate CAPTURE";
-    Args a(argv, specs, 1, 1);
-    if (a.help()) {
-        std::fputs(helpText(usage, "Checks CAPTURE against capture format v1: required names, shapes, units,\n"
-                                   "finite and physical numbers, index ranges, and that every trace block is\n"
-                                   "readable and finite. Exit 0 when valid; exit 2 with one line per problem\n"
-                                   "(FILE: HDF5 path: problem) otherwise.", specs).c_str(), stdout);
-        return 0;
-    }
-    const std::string path = a.positional()[0];
-    auto problems = checkCaptureIsolated(path, true);
-    if (problems.empty()) {
-        // Warnings do not make the file invalid; the header is known to be readable here.
-        for (auto& w : core::headerWarnings(core::CaptureReader(path).header()))
-            std::fprintf(stderr, "%s: warning: %s: %s\n", path.c_str(), w.where.c_str(), w.what.c_str());
-        if (!a.has("--quiet")) std::printf("%s: valid capture (format v1)\n", path.c_str());
-        return 0;
-    }
-    for (auto& p : problems)
-        std::fprintf(stderr, "%s: %s%s\n", path.c_str(), p.where.empty() ? "" : (p.where + ": ").c_str(), p.what.c_str());
-    return 2;
 }
 
 int cmdInfo(const Argv& argv) {

@@ -16,6 +16,10 @@ int cmdReconstruct(const Argv& args);
 int cmdBatch(const Argv& args);
 int cmdMeasure(const Argv& args);
 
+/// Reads and checks a batch manifest (as `batch` does before it starts); throws InputError
+/// naming the manifest and the key.
+void checkManifest(const std::string& path);
+
 struct Command {
     const char* name;
     const char* summary;

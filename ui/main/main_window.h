@@ -10,6 +10,8 @@
 #include <functional>
 #include <vector>
 
+#include "core/edit_journal.h"
+
 class QAction;
 class QActionGroup;
 class QComboBox;
@@ -54,7 +56,12 @@ public:
     CurvePanel* curvePanel() const { return curve_; }
 
     /// Opens a capture (.h5) or a case (.umbracase). Returns false (after telling the user) on error.
+    /// A case with an edit journal is recovered from it (per the Recovery option), and the
+    /// status bar lists the recovered edits.
     bool openPath(const QString& path);
+    /// At start: recovers an untitled case from its edit journal (per the Recovery option).
+    /// True when it did.
+    bool recoverUntitledJournal();
     /// Saves the case to `path` (Save As when empty and untitled). Returns false on error/cancel.
     bool saveCaseTo(const QString& path);
     /// Opens the weld demo case: DIR/weld_coupon.h5 with DIR/reference_block.h5 as its second
@@ -85,6 +92,8 @@ protected:
     void dropEvent(QDropEvent*) override;
 
 private:
+    bool offerJournalRecovery(const core::JournalRecovery& r, const QString& case_path);
+    void reportRecovery(const core::JournalRecovery& r);
     void buildActions();
     void buildDocks();
     void buildStatusBar();
