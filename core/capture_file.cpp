@@ -275,8 +275,9 @@ void parseHeader(hid_t file, HeaderParse& out) {
             } else if (declared > 0 && layout == H5D_CHUNKED) {
                 hsize_t chunk[4] = {0, 0, 0, 0};
                 hsize_t nchunks = 0;
-                if (H5Pget_chunk(dcpl.get(), 4, chunk) == 4 && chunk[0] && chunk[1] && chunk[2] && chunk[3] &&
-                    H5Dget_num_chunks(ds.get(), H5S_ALL, &nchunks) >= 0) {
+                Hid space(H5Dget_space(ds.get()));  // this HDF5 version refuses H5S_ALL here
+                if (H5Pget_chunk(dcpl.get(), 4, chunk) == 4 && chunk[0] && chunk[1] && chunk[2] && chunk[3] && space &&
+                    H5Dget_num_chunks(ds.get(), space.get(), &nchunks) >= 0) {
                     double expected = 1;
                     for (int k = 0; k < 4; ++k) expected *= std::ceil(double((*d)[k]) / double(chunk[k]));
                     if (double(nchunks) < expected)

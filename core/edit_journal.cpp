@@ -24,19 +24,6 @@ using json = nlohmann::json;
 const std::string kHeader = "umbra-journal 1\n";
 constexpr std::uintmax_t kMaxJournalBytes = std::uintmax_t(256) << 20;
 
-std::string folderOf(const std::string& path) {
-    const auto p = std::filesystem::path(path).parent_path();
-    return p.empty() ? std::string(".") : p.string();
-}
-
-void fsyncFolder(const std::string& path) {
-    const int dfd = ::open(folderOf(path).c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-    if (dfd >= 0) {
-        (void)::fsync(dfd);
-        ::close(dfd);
-    }
-}
-
 std::string record(uint64_t seq, const std::string& payload) {
     return "R " + std::to_string(payload.size()) + " " + std::to_string(crc32(payload.data(), payload.size())) + " " +
            std::to_string(seq) + "\n" + payload + "\n";

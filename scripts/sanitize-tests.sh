@@ -4,8 +4,11 @@
 # no recovery: the first finding fails the test) into build-asan/ and runs the whole ctest
 # suite, the workstation tests offscreen. Prints the time taken.
 #   scripts/sanitize-tests.sh            # everything
-#   scripts/sanitize-tests.sh -R core    # extra arguments go to ctest (a subset)
-# Environment: UMBRA_ASAN_BUILD (build folder, default build-asan), UMBRA_ASAN_JOBS (default 2).
+#   scripts/sanitize-tests.sh -L 'core|cli'          # extra arguments go to ctest (a subset)
+#   UMBRA_ASAN_TARGETS="core_tests umbra-cli" scripts/sanitize-tests.sh -L 'core|cli'
+#                                        # build only what that subset needs (CI on 2 cores)
+# Environment: UMBRA_ASAN_BUILD (build folder, default build-asan), UMBRA_ASAN_JOBS (default 2),
+# UMBRA_ASAN_TARGETS (targets to build, default all).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 build=${UMBRA_ASAN_BUILD:-build-asan}
@@ -16,7 +19,11 @@ command -v ccache >/dev/null && launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache -
 # RelWithDebInfo: optimised like the release build (the suite's run time stays reasonable),
 # with line numbers in the reports. Benchmarks are not built (they are not tests).
 cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DUMBRA_SANITIZE=ON -DUMBRA_BUILD_BENCHMARKS=OFF "${launcher[@]}" >/dev/null
-cmake --build "$build" -j"$jobs"
+if [ -n "${UMBRA_ASAN_TARGETS:-}" ]; then
+  cmake --build "$build" -j"$jobs" --target $UMBRA_ASAN_TARGETS
+else
+  cmake --build "$build" -j"$jobs"
+fi
 built=$(date +%s)
 echo "sanitize-tests: built in $((built - start)) s"
 # Suppressions: none for our code. The HDF5 library keeps global state until exit (no leak).

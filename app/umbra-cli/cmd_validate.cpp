@@ -95,7 +95,9 @@ Outcome checkRecipe(const std::string& path) {
         try {
             r.mergeJson(ss.str(), path);
         } catch (const core::SettingError& e) {
-            throw core::InputError(path, "", e.what());
+            std::string what = e.what();
+            if (what.rfind(path + ": ", 0) == 0) what = what.substr(path.size() + 2);  // the line names the file already
+            throw core::InputError(path, "", what);
         }
     });
     o.valid_text = "valid recipe";

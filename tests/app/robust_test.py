@@ -62,8 +62,11 @@ def case_validate_kinds():
     shutil.copy(cap, os.path.join(d, "capture_named.json"))
     expect(os.path.join(d, "capture_named.json"), 0, "valid capture")
 
-    img = os.path.join(d, "fixture.image.h5")
-    rc, out, err = run("reconstruct", cap, "-o", img, "--frames", "0", "--grid-mm", "-2:2:1:6:0.1", timeout=300)
+    sim = os.path.join(d, "small_block.h5")
+    rc, out, err = run("simulate", SCENE, "-o", sim, timeout=600)
+    check(rc == 0, f"simulate exit {rc}: {err}")
+    img = os.path.join(d, "small_block.image.h5")
+    rc, out, err = run("reconstruct", sim, "-o", img, "--grid-mm", "-2:2:1:6:0.1", timeout=300)
     check(rc == 0, f"reconstruct exit {rc}: {err}")
     expect(img, 0, "valid image file")
 
