@@ -31,7 +31,9 @@ export ASAN_OPTIONS=${ASAN_OPTIONS:-detect_leaks=1:abort_on_error=0:halt_on_erro
 export UBSAN_OPTIONS=${UBSAN_OPTIONS:-print_stacktrace=1:halt_on_error=1}
 export QT_QPA_PLATFORM=offscreen
 rc=0
-(cd "$build" && ctest --output-on-failure -j"$jobs" --timeout 1800 "$@") || rc=$?
+# The bounded-memory test caps the address space, which AddressSanitizer's shadow memory (terabytes
+# of reserved address space) cannot live under: it runs in the normal build only.
+(cd "$build" && ctest --output-on-failure -j"$jobs" --timeout 1800 -E 'bounded_memory' "$@") || rc=$?
 end=$(date +%s)
 echo "sanitize-tests: tests in $((end - built)) s; total $((end - start)) s; ctest exit $rc"
 exit $rc
