@@ -14,7 +14,7 @@ inline bool isTitleEdit(int i) { return i % 3 == 0; }
 
 inline std::string titleAfter(int k) {
     for (int i = k; i >= 1; --i)
-        if (isTitleEdit(i)) return "Journal test, title of edit " + std::to_string(i);
+        if (isTitleEdit(i)) return std::string("Journal test, title of edit ").append(std::to_string(i));
     return "";
 }
 
@@ -23,12 +23,13 @@ inline std::vector<core::Finding> findingsAfter(int k) {
     for (int i = 1; i <= k; ++i) {
         if (isTitleEdit(i)) continue;
         core::Finding f;
-        f.id = "F" + std::to_string(i);
+        const std::string n = std::to_string(i);
+        f.id = std::string("F").append(n);
         f.number = int(fs.size()) + 1;
-        f.indication.location = "frame 0, x = " + std::to_string(i) + " mm";
+        f.indication.location = std::string("frame 0, x = ").append(n).append(" mm");
         f.indication.x_mm = i / 3.0;  // not a short decimal: the journal must keep every bit
         f.indication.depth_mm = 10.0 + i * 0.1;
-        f.indication.description = "Edit " + std::to_string(i) + ": reflector seen in the synthetic test case.";
+        f.indication.description = std::string("Edit ").append(n).append(": reflector seen in the synthetic test case.");
         fs.push_back(f);
     }
     return fs;
