@@ -37,8 +37,8 @@ cmake --build "$build" -j2 --target $(for t in $targets; do printf 'fuzz_%s ' "$
 hdf5_targets=" capture image "
 classify() {  # $1 target binary, $2 input: prints "libhdf5" or "umbra"
   local first
-  first=$(LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" timeout 60 "$1" "$2" 2>&1 | grep -E '^ +#[0-9]+ ' |
-          grep -v -E 'interceptor|sanitizer_common|asan_|ubsan_|lsan_|libc\.so|libFuzzer|fuzzer::' | head -1 || true)
+  first=$(LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" timeout 60 "$1" -timeout=10 "$2" 2>&1 | grep -E '^ +#[0-9]+ ' |
+          grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libc\.so|libFuzzer|fuzzer::' | head -1 || true)
   case "$first" in *libhdf5*) echo libhdf5 ;; *) echo umbra ;; esac
 }
 status=0
