@@ -267,7 +267,10 @@ void parseHeader(hid_t file, HeaderParse& out) {
             for (hsize_t v : *d) declared *= double(v);
             Hid dcpl(H5Dget_create_plist(ds.get()));
             const H5D_layout_t layout = dcpl ? H5Pget_layout(dcpl.get()) : H5D_LAYOUT_ERROR;
-            if (declared > 0 && layout == H5D_CONTIGUOUS) {
+            // Sizes beyond CaptureLimits are reported by checkHeader with their own message.
+            const bool within_limits = (*d)[0] <= CaptureLimits::max_frames && (*d)[3] <= CaptureLimits::max_samples;
+            if (!within_limits) {
+            } else if (declared > 0 && layout == H5D_CONTIGUOUS) {
                 const double stored = double(H5Dget_storage_size(ds.get()));
                 if (stored < declared)
                     add("/data/rf", "declares " + mib(declared) + " of traces but only " + mib(stored) +

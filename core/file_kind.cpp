@@ -90,9 +90,8 @@ FileKind hdf5Kind(const std::string& path) {
     if (H5Fis_hdf5(path.c_str()) <= 0) throw InputError(path, "", "is not an HDF5 file (or is truncated or damaged)");
     Hid f(H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT));
     if (!f) throw InputError(path, "", "cannot be opened as HDF5 (truncated or damaged?)");
-    if (exists(f.get(), "/image")) return FileKind::Image;
-    if (exists(f.get(), "/data")) return FileKind::Capture;
-    return FileKind::Hdf5;
+    // Every other HDF5 file is checked as a capture, so that what it lacks is named.
+    return exists(f.get(), "/image") ? FileKind::Image : FileKind::Capture;
 }
 
 }  // namespace umbra::core

@@ -9,9 +9,9 @@ namespace umbra::core {
 
 enum class FileKind {
     Unknown,   ///< none of the below
-    Capture,   ///< HDF5 with /data (capture format v1)
+    Capture,   ///< HDF5 without /image (checked against capture format v1)
     Image,     ///< HDF5 with /image (reconstructed image file)
-    Hdf5,      ///< HDF5, neither group (or the check of the groups was not asked for)
+    Hdf5,      ///< HDF5, not yet told capture or image (hdf5Kind tells them)
     Dicom,     ///< DICOM Part 10 file: 128-byte preamble, then "DICM"
     Case,      ///< JSON, "format": "umbracase"
     Scene,     ///< JSON, "format": "umbra-scene"
@@ -30,7 +30,7 @@ std::string toString(FileKind k);
 /// empty, or is JSON that is not valid.
 FileKind sniffFileKind(const std::string& path);
 
-/// Capture, Image or Hdf5 by the root groups of an HDF5 file (opens it with the HDF5 library).
+/// Image when the HDF5 file has /image, else Capture (opens it with the HDF5 library).
 /// Throws InputError when the library cannot open it.
 FileKind hdf5Kind(const std::string& path);
 

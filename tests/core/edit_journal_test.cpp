@@ -37,6 +37,9 @@ CaseDocument docWithTitle(const std::string& t) {
     return d;
 }
 
+// "edit 3" (appended, not concatenated: GCC 12 warns falsely on "text" + std::string).
+std::string named(const char* prefix, int i) { return std::string(prefix).append(std::to_string(i)); }
+
 std::string readAll(const fs::path& p) {
     std::ifstream in(p, std::ios::binary);
     std::ostringstream ss;
@@ -58,7 +61,7 @@ TEST(edit_journal_test, records_read_back_in_order) {
     EXPECT_FALSE(EditJournal::recover(path).has_value());
     {
         EditJournal j(path);
-        for (int i = 1; i <= 5; ++i) j.append("edit " + std::to_string(i), docWithTitle("t" + std::to_string(i)));
+        for (int i = 1; i <= 5; ++i) j.append(named("edit ", i), docWithTitle(named("t", i)));
     }
     const auto r = EditJournal::recover(path);
     ASSERT_TRUE(r.has_value());
@@ -75,7 +78,7 @@ TEST(edit_journal_test, torn_or_corrupted_tail_is_ignored) {
     const fs::path path = dir.path / "c.umbracase.journal";
     {
         EditJournal j(path.string());
-        for (int i = 1; i <= 3; ++i) j.append("edit " + std::to_string(i), docWithTitle("t" + std::to_string(i)));
+        for (int i = 1; i <= 3; ++i) j.append(named("edit ", i), docWithTitle(named("t", i)));
     }
     const std::string full = readAll(path);
     // Every cut inside the last record leaves the state after edit 2.
@@ -109,8 +112,8 @@ TEST(edit_journal_test, compaction_keeps_state_and_edit_list) {
     {
         EditJournal j(path);
         for (n = 1; n <= 40; ++n) {
-            big.title = "t" + std::to_string(n);
-            j.append("edit " + std::to_string(n), big);
+            big.title = named("t", n);
+            j.append(named("edit ", n), big);
         }
     }
     --n;
@@ -119,7 +122,7 @@ TEST(edit_journal_test, compaction_keeps_state_and_edit_list) {
     ASSERT_TRUE(r.has_value());
     EXPECT_EQ(r->doc, big);
     ASSERT_EQ(r->edits.size(), size_t(n));
-    for (int i = 0; i < n; ++i) EXPECT_EQ(r->edits[size_t(i)], "edit " + std::to_string(i + 1));
+    for (int i = 0; i < n; ++i) EXPECT_EQ(r->edits[size_t(i)], named("edit ", i + 1));
 }
 
 TEST(edit_journal_test, discard_removes_the_file_and_stale_temporaries_are_cleaned) {
