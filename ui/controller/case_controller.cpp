@@ -69,6 +69,9 @@ CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new B
 }
 
 CaseController::~CaseController() {
+    // The undo stack clears itself when destroyed (after the journal): that is no user edit.
+    journal_off_ = true;
+    disconnect(&undo_, nullptr, this, nullptr);
     // Stop and join the worker while everything it reports to is still alive.
     delete worker_;
     worker_ = nullptr;
