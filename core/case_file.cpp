@@ -22,7 +22,10 @@ namespace fs = std::filesystem;
 using json = nlohmann::ordered_json;
 
 constexpr const char* kFormatTag = "umbracase";
-constexpr std::uintmax_t kMaxCaseBytes = 256u << 20;  // a case is text; refuse anything absurd
+constexpr std::uintmax_t kMaxCaseBytes = 64u << 20;  // a case is text; refuse anything absurd
+// Memory budget for loading a case: the parsed JSON tree is estimated before parsing
+// (core/json_guard.h) and refused beyond 256 MiB; the document built from it is smaller.
+constexpr size_t kCaseMemoryBudget = size_t(256) << 20;
 
 // ---------- writing ----------
 
@@ -452,7 +455,9 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir, boo
 
 CaseDocument caseFromJson(const std::string& text, const std::string& source, const std::string& base_dir) {
     Reader r(source);
-    checkJsonText(text, source);  // plain-words syntax errors, bounded depth and size, out-of-range numbers named
+    JsonLimits limits;
+    limits.max_memory_bytes = kCaseMemoryBudget;
+    checkJsonText(text, source, limits);  // plain-words syntax errors, bounded depth, size and memory, out-of-range numbers named
     json j;
     try {
         j = json::parse(text);

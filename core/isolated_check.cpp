@@ -27,15 +27,27 @@ std::vector<Problem> checkCaptureIsolated(const std::string& path, bool full, in
             return {{"", e.what()}};
         }
     };
+    ProblemCheck rest;
+    if (full) rest = [&] { return CaptureReader::validate(path); };
+    return runIsolated(header, rest, header_seconds);
+}
+
+std::vector<Problem> runIsolated(const ProblemCheck& header, const ProblemCheck& rest, int header_seconds) {
+    const bool full = bool(rest);
+    auto inProcess = [&] {
+        auto p = header();
+        if (p.empty() && full) p = rest();
+        return p;
+    };
     int fds[2];
-    if (pipe(fds) != 0) return full ? CaptureReader::validate(path) : header();
+    if (pipe(fds) != 0) return inProcess();
     std::fflush(nullptr);
     const pid_t parent = getpid();
     const pid_t pid = fork();
     if (pid < 0) {
         close(fds[0]);
         close(fds[1]);
-        return full ? CaptureReader::validate(path) : header();
+        return inProcess();
     }
     if (pid == 0) {
         // The child dies with its parent: a killed umbra-cli (a batch system's time limit, kill -9)
@@ -52,9 +64,24 @@ std::vector<Problem> checkCaptureIsolated(const std::string& path, bool full, in
                 done += size_t(n);
             }
         };
-        auto problems = header();
+        std::vector<Problem> problems;
+        try {
+            problems = header();
+        } catch (const InputError& e) {
+            problems = e.problems();
+        } catch (const std::exception& e) {
+            problems = {{"", e.what()}};
+        }
         send("H");  // the header was read (well or badly) in time
-        if (problems.empty() && full) problems = CaptureReader::validate(path);
+        if (problems.empty() && full) {
+            try {
+                problems = rest();
+            } catch (const InputError& e) {
+                problems = e.problems();
+            } catch (const std::exception& e) {
+                problems = {{"", e.what()}};
+            }
+        }
         nlohmann::json j = nlohmann::json::array();
         for (auto& p : problems) j.push_back({p.where, p.what});
         send(j.dump(-1, ' ', false, nlohmann::json::error_handler_t::replace));

@@ -10,12 +10,21 @@
 // fork() copies only the calling thread: call it where no other thread may hold the HDF5 lock
 // (core::detail::hdf5Mutex), e.g. a command-line tool before it starts reading; a multi-threaded
 // program should run `umbra-cli validate` as a separate process instead.
+#include <functional>
 #include <string>
 #include <vector>
 
 #include "core/error.h"
 
 namespace umbra::core {
+
+using ProblemCheck = std::function<std::vector<Problem>()>;
+
+/// Runs `first` and then (if it found nothing) `rest` in a child process and returns the
+/// problems they found; `first` must report within `first_seconds` or the child is killed and
+/// one problem says so. A child that crashes gives one problem naming the signal. Same rules
+/// as checkCaptureIsolated (single-threaded callers only; in-process when fork() fails).
+std::vector<Problem> runIsolated(const ProblemCheck& first, const ProblemCheck& rest, int first_seconds);
 
 /// Problems found in the capture at `path` (empty when it is sound), each with its HDF5 path.
 std::vector<Problem> checkCaptureIsolated(const std::string& path, bool full, int header_seconds = 30);

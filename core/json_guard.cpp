@@ -65,6 +65,15 @@ private:
 
     void count() {
         if (++values_ > lim_.max_values) fail("more than " + std::to_string(lim_.max_values) + " values (the file is too large to load)");
+        spend(kJsonValueBytes);
+    }
+
+    // Adds to the estimated memory of the parsed tree; refuses past the budget.
+    void spend(size_t bytes) {
+        memory_ += bytes;
+        if (memory_ > lim_.max_memory_bytes)
+            fail("loading it would take more than " + std::to_string(lim_.max_memory_bytes >> 20) +
+                 " MiB of memory (the file is too large to load)");
     }
 
     void value() {
@@ -74,7 +83,9 @@ private:
         if (c == '{') return object();
         if (c == '[') return array();
         if (c == '"') {
+            const size_t start = i_;
             string(nullptr);
+            spend(kJsonStringBytes + (i_ - start));
             return;
         }
         if (c == '-' || (c >= '0' && c <= '9')) return number();
@@ -90,6 +101,7 @@ private:
 
     void push(bool object) {
         if (stack_.size() >= lim_.max_depth) fail("nested deeper than " + std::to_string(lim_.max_depth) + " levels");
+        spend(kJsonContainerBytes);
         stack_.push_back({object, {}, 0});
     }
 
@@ -107,6 +119,7 @@ private:
             if (i_ >= t_.size() || t_[i_] != '"') syntax("expected a key in double quotes");
             std::string key;
             string(&key);
+            spend(kJsonMemberBytes + key.size());
             stack_.back().key = key;
             ws();
             if (i_ >= t_.size() || t_[i_] != ':') syntax("expected ':' after the key");
@@ -219,7 +232,7 @@ private:
     const std::string& t_;
     const std::string& file_;
     JsonLimits lim_;
-    size_t i_ = 0, values_ = 0;
+    size_t i_ = 0, values_ = 0, memory_ = 0;
     std::vector<Level> stack_;
 };
 

@@ -58,5 +58,7 @@ double parseFiniteNumber(const std::string& opt, const std::string& v);
 /// every trace block as CaptureReader::validate does. Empty when the file is sound.
 /// Call it before opening a capture from the command line (in cmd_info.cpp).
 std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full);
+/// Seconds a child may take to get through a file's header (UMBRA_HEADER_TIMEOUT_S, default 30).
+int headerSeconds();
 
 }  // namespace umbra::cli

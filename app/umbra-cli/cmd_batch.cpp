@@ -26,6 +26,7 @@
 #include "reconstruct_job.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
+#include "time_limit.h"
 
 namespace umbra::cli {
 namespace {
@@ -222,6 +223,8 @@ std::optional<size_t> upToDate(const std::string& image, const std::string& capt
 
 }  // namespace
 
+void checkManifest(const std::string& path) { (void)readManifest(path); }
+
 int cmdBatch(const Argv& argv) {
     const std::vector<OptionSpec> specs = {
         {"--out", "DIR", "folder for the outputs and the summary (required; created if missing)"},
@@ -310,6 +313,10 @@ int cmdBatch(const Argv& argv) {
                     if (stage.rfind("capture hash", 0) == 0) it.hash_s += s;  // time spent on (or waiting for) the hash
                 it.status = "done";
             }
+        } catch (const core::Cancelled&) {
+            if (!timeLimitReached()) throw;
+            it.status = "failed";
+            it.error = "stopped by the time limit (--timeout)";
         } catch (const std::exception& e) {
             it.status = "failed";
             it.error = e.what();
@@ -325,6 +332,7 @@ int cmdBatch(const Argv& argv) {
         std::fprintf(stderr, "batch: [%zu/%zu] %s: %s (%.2f s)%s%s\n", k + 1, items.size(), m.entries[it.index].c_str(),
                      it.status.c_str(), it.total_s, it.error.empty() ? "" : ": ", it.error.c_str());
         saveSummary();
+        if (timeLimitReached()) throw core::Cancelled();  // the summary records what was done
     }
     size_t failed = 0;
     for (auto& it : items) failed += it.status == "failed";

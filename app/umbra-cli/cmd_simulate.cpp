@@ -8,6 +8,7 @@
 #include "core/error.h"
 #include "reconstruction/simulate/scene.h"
 #include "reconstruction/simulate/simulator.h"
+#include "time_limit.h"
 
 namespace umbra::cli {
 
@@ -40,6 +41,9 @@ int cmdSimulate(const Argv& argv) {
     if (auto v = a.value("--frames")) opt.max_frames = parseWholeNumber("--frames", *v, 1, 1000000);
     if (auto v = a.value("--threads")) opt.threads = unsigned(parseWholeNumber("--threads", *v, 1, 256));
     const auto scene = recon::sim::loadScene(a.positional()[0]);
+    opt.progress = [](double) {
+        if (timeLimitReached()) throw core::Cancelled();  // --timeout: between frames; the partial file is removed
+    };
     const auto st = recon::sim::simulateToFile(scene, *out, opt);
     if (!a.has("--quiet")) {
         std::error_code ec;

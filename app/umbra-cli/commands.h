@@ -23,6 +23,10 @@ int cmdImport(const Argv& args);
 int cmdExportDicom(const Argv& args);
 int cmdCalibrate(const Argv& args);
 
+/// Reads and checks a batch manifest (as `batch` does before it starts); throws InputError
+/// naming the manifest and the key.
+void checkManifest(const std::string& path);
+
 struct Command {
     const char* name;
     const char* summary;

@@ -1,18 +1,20 @@
 // SPDX-License-Identifier: MIT
 // umbra-cli: headless Umbra. Thin: parses the subcommand and dispatches.
 #include <cstdio>
+#include <cstdlib>
 #include <exception>
 #include <string>
 
 #include "args.h"
 #include "commands.h"
 #include "core/error.h"
+#include "time_limit.h"
 
 namespace umbra::cli {
 const std::vector<Command>& commands() {
     static const std::vector<Command> table = {
         {"info", "print a readable summary of a capture", cmdInfo},
-        {"validate", "check a capture against format v1 (or a DICOM image by content); exit 2 listing each problem", cmdValidate},
+        {"validate", "check any file Umbra reads, DICOM included (by content); exit 2 listing each problem", cmdValidate},
         {"simulate", "make a synthetic capture from a scene description", cmdSimulate},
         {"reconstruct", "reconstruct B-scan images from a capture", cmdReconstruct},
         {"batch", "reconstruct every capture of a manifest (one shard of it), with a summary", cmdBatch},
@@ -39,6 +41,7 @@ int main(int argc, char** argv) {
             s += n + c.summary + "\n";
         }
         s += "\n'umbra-cli COMMAND --help' describes each command; 'umbra-cli --version' prints the version.\n";
+        s += "reconstruct, batch and simulate take --timeout SECONDS: stop (exit 124) when the time is up.\n";
         return s;
     };
     if (argc < 2) {
@@ -55,6 +58,31 @@ int main(int argc, char** argv) {
         return 0;
     }
     Argv rest(argv + 2, argv + argc);
+    // --timeout SECONDS (long work only): taken out here, the command never sees it.
+    const bool long_work = cmd == "reconstruct" || cmd == "batch" || cmd == "simulate";
+    for (size_t i = 0; long_work && i < rest.size(); ++i) {
+        std::string v;
+        if (rest[i] == "--timeout" && i + 1 < rest.size()) {
+            v = rest[i + 1];
+            rest.erase(rest.begin() + long(i), rest.begin() + long(i) + 2);
+        } else if (rest[i].rfind("--timeout=", 0) == 0) {
+            v = rest[i].substr(10);
+            rest.erase(rest.begin() + long(i));
+        } else if (rest[i] == "--timeout") {
+            std::fprintf(stderr, "umbra-cli %s: --timeout needs a number of seconds\n", cmd.c_str());
+            return 2;
+        } else {
+            continue;
+        }
+        char* end = nullptr;
+        const double s = std::strtod(v.c_str(), &end);
+        if (v.empty() || *end != '\0' || !(s > 0 && s <= 1e7)) {
+            std::fprintf(stderr, "umbra-cli %s: --timeout '%s' is not a number of seconds in (0, 1e7]\n", cmd.c_str(), v.c_str());
+            return 2;
+        }
+        startTimeLimit(s, cmd);
+        break;
+    }
     for (auto& c : commands())
         if (cmd == c.name) {
             // Exit codes (commands.h): 2 for usage errors, bad settings and bad input files;
@@ -70,6 +98,10 @@ int main(int argc, char** argv) {
             } catch (const umbra::core::InputError& e) {
                 std::fprintf(stderr, "%s\n", e.what());
                 return 2;
+            } catch (const umbra::core::Cancelled&) {
+                if (!timeLimitReached()) throw;
+                std::fprintf(stderr, "%s\n", timeLimitMessage().c_str());
+                return kTimeLimitExitCode;
             } catch (const std::exception& e) {
                 std::fprintf(stderr, "umbra-cli %s: %s\n", c.name, e.what());
                 return 1;

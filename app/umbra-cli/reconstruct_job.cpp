@@ -15,6 +15,7 @@
 #include "reconstruction/sizing_setup.h"
 #include "reconstruction/sizing_setup.h"
 #include "reconstruction/tgc_stage.h"
+#include "time_limit.h"
 
 namespace umbra::cli {
 namespace {
@@ -112,6 +113,7 @@ JobResult reconstructToFile(const JobOptions& o, const core::Recipe& recipe) {
     size_t pos = 0;
     recon::Progress prog;
     if (o.progress) prog.progress = [&](double x) { o.progress((double(pos) + x) / double(frames.count), pos, frames.count); };
+    prog.cancelled = [] { return timeLimitReached(); };  // --timeout
 
     const std::string title = (h.title.empty() ? o.capture : h.title) +
                               (h.isSynthetic() && h.title.find("synthetic") == std::string::npos ? " - synthetic demonstration data" : "");

@@ -95,7 +95,9 @@ int main(int argc, char** argv) {
         ok = w.startPractice(cl.value(practice), who);
     } else if (cl.isSet(demo)) ok = w.openDemoCase(cl.value(demo), cl.value(demoCase));
     else if (!cl.positionalArguments().isEmpty()) ok = w.openPath(cl.positionalArguments().front());
-    else if (!screenshot && QFileInfo::exists(umbra::ui::CaseController::untitledAutosavePath()) &&
+    else if (!screenshot && w.recoverUntitledJournal()) {
+        // every edit of the untitled case, up to the last, is back (the status bar lists them)
+    } else if (!screenshot && QFileInfo::exists(umbra::ui::CaseController::untitledAutosavePath()) &&
              QMessageBox::question(&w, QObject::tr("Recover unsaved work?"),
                                    QObject::tr("An untitled case from an earlier session was auto-saved but never saved:\n%1\n\n"
                                                "Open it?").arg(umbra::ui::CaseController::untitledAutosavePath())) ==

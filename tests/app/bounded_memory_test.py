@@ -4,8 +4,8 @@
 
 usage: bounded_memory_test.py UMBRA_CLI WORKDIR
 
-A capture written here with h5py claims many frames but stores traces only in the first and
-the last (unwritten HDF5 chunks read as zeros, so the file stays small). Its frames x pixels
+A capture written here with h5py has many frames with echoes only in the first and the last
+(the others hold zeros; 16 MiB on disk). Its frames x pixels
 as float32 exceed the address-space cap (RLIMIT_AS, as `ulimit -v`) the program runs under,
 so a program holding every frame at once fails with std::bad_alloc; reconstructing frame by
 frame succeeds. Outside checks on the image file, read back with h5py:
@@ -63,6 +63,9 @@ def write_capture(path):
                                       chunks=(1, 1, wc.N_EL, N_SAMPLES))
         rf.attrs["scale"] = 1.0
         rf.attrs["units"] = "V"
+        # Every frame is stored (zeros between the two echo frames): a capture whose traces were
+        # never written is refused as damaged.
+        rf[...] = np.zeros(rf.shape, dtype=np.float32)
         x = np.array(wc.ELEMENT_X_M)
         t = np.arange(N_SAMPLES) / FS
         sigma = 1.5 / F0 / 2.355  # about 1.5 cycles at half amplitude

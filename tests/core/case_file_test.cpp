@@ -2,6 +2,7 @@
 // The case file: round trip of every field, atomic save, capture checks by SHA-256, relative
 // capture paths, and clear errors for bad files.
 #include <gtest/gtest.h>
+#include <sys/resource.h>
 #include <unistd.h>
 
 #include <filesystem>
@@ -502,4 +503,52 @@ TEST(case_file_test, old_single_amplitude_reference_opens_as_a_one_point_curve) 
     EXPECT_NE(again.find("\"distance_amplitude_curve\""), std::string::npos);
     EXPECT_NE(again.find("\"after TCG\""), std::string::npos);
     EXPECT_EQ(loadCase(file.string()).curve->basis, AmplitudeBasis::AfterTcg);
+}
+
+// A damaged or hostile case file must be refused before it takes memory: 90 MB holding 30 M
+// empty strings would take gigabytes as a parsed tree (each string a heap node). Refused by the
+// file-size limit in loadCase, and by the value count / memory estimate in caseFromJson; the
+// process's peak resident memory (getrusage, Linux reports KiB) stays near the text's own size.
+TEST(case_file_test, huge_case_of_empty_strings_is_refused_within_a_memory_budget) {
+    TempDir dir;
+    std::string text = R"({"version": 1, "title": "t", "pertinent_negatives": [)";
+    const size_t n = 30'000'000;
+    text.reserve(text.size() + 3 * n + 16);
+    for (size_t i = 0; i < n; ++i) text += i ? ",\"\"" : "\"\"";
+    text += "]}";
+    ASSERT_GT(text.size(), size_t(89000000));  // 90 MB
+    const fs::path p = dir.path() / "huge.umbracase";
+    writeFile(p, text);
+    try {
+        (void)umbra::core::loadCase(p.string());
+        FAIL() << "a 90 MB case was loaded";
+    } catch (const umbra::core::InputError& e) {
+        EXPECT_NE(std::string(e.what()).find("huge.umbracase"), std::string::npos) << e.what();
+        EXPECT_NE(std::string(e.what()).find("at most"), std::string::npos) << e.what();
+    }
+    try {
+        (void)umbra::core::caseFromJson(text, "huge.umbracase");
+        FAIL() << "30 M strings were parsed";
+    } catch (const umbra::core::InputError& e) {
+        EXPECT_NE(std::string(e.what()).find("too large to load"), std::string::npos) << e.what();
+    }
+    rusage ru{};
+    getrusage(RUSAGE_SELF, &ru);
+#if !defined(__SANITIZE_ADDRESS__)
+    EXPECT_LT(double(ru.ru_maxrss) * 1024, 600.0 * (1 << 20)) << "peak resident memory while refusing";
+#endif
+}
+
+// Fewer values than the count limit (3 M) but 1.5 M small objects, each a map in memory: refused
+// by the memory estimate (about 210 B each, 12 MB of text), with the budget named.
+TEST(case_file_test, case_over_the_memory_budget_is_refused) {
+    std::string text = R"({"version": 1, "title": "t", "pertinent_negatives": [)";
+    for (size_t i = 0; i < 1'500'000; ++i) text += i ? R"(,{"a":0})" : R"({"a":0})";
+    text += "]}";
+    try {
+        (void)umbra::core::caseFromJson(text, "long.umbracase");
+        FAIL() << "a case over the memory budget was parsed";
+    } catch (const umbra::core::InputError& e) {
+        EXPECT_NE(std::string(e.what()).find("more than 256 MiB of memory"), std::string::npos) << e.what();
+    }
 }

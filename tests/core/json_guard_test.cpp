@@ -77,3 +77,34 @@ TEST(json_guard_test, syntax_errors_in_plain_words_with_line_and_column) {
     EXPECT_TRUE(has(errorOf("[1.]"), "digits expected"));
     EXPECT_TRUE(has(errorOf("[nul]"), "unexpected character"));
 }
+
+#if !defined(__SANITIZE_ADDRESS__)
+#include <malloc.h>
+
+#include <nlohmann/json.hpp>
+
+// The memory estimate bounds what the JSON library really allocates (glibc's mallinfo2 count of
+// bytes in use, which includes the allocator's per-chunk overhead) from above, and is not more
+// than four times it: shapes of empty strings, long strings, numbers and objects.
+TEST(json_guard_test, memory_estimate_bounds_the_parsed_tree) {
+    auto shaped = [](const std::string& item, int n) {
+        std::string t = "[";
+        for (int i = 0; i < n; ++i) t += (i ? "," : "") + item;
+        return t + "]";
+    };
+    for (const std::string& text : {shaped("\"\"", 200000), shaped("\"" + std::string(100, 'a') + "\"", 50000),
+                                    shaped("12345.678", 200000), shaped(R"({"key_one": 1, "another_key": "v"})", 50000)}) {
+        const size_t before = mallinfo2().uordblks;
+        size_t actual = 0;
+        {
+            auto j = nlohmann::json::parse(text);
+            actual = mallinfo2().uordblks - before;
+        }
+        umbra::core::JsonLimits lim;
+        lim.max_memory_bytes = actual - 1;
+        EXPECT_NE(errorOf(text, lim), "") << "estimate below the real " << actual << " bytes: " << text.substr(0, 40);
+        lim.max_memory_bytes = 4 * actual;
+        EXPECT_EQ(errorOf(text, lim), "") << "estimate above 4 x " << actual << " bytes: " << text.substr(0, 40);
+    }
+}
+#endif

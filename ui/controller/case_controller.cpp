@@ -18,6 +18,7 @@
 #include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
+#include "ui/controller/capture_check.h"
 #include "ui/controller/value_command.h"
 
 namespace umbra::ui {
@@ -58,9 +59,20 @@ CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new B
         if (gen == generation_) stopTopViewRun();
     });
     connect(&undo_, &QUndoStack::cleanChanged, this, [this](bool) { emit dirtyChanged(isDirty()); });
+    // Every undoable edit, undo and redo is journalled at once (kill -9 loses nothing).
+    connect(&undo_, &QUndoStack::indexChanged, this, [this](int idx) {
+        if (journal_off_) return;
+        // idx == journal_index_: an edit merged into the last command (e.g. a dragged handle).
+        const QString what = idx >= journal_index_ ? undo_.text(idx - 1) : tr("Undo %1").arg(undo_.text(idx));
+        journal_index_ = idx;
+        journal(what);
+    });
 }
 
 CaseController::~CaseController() {
+    // The undo stack clears itself when destroyed (after the journal): that is no user edit.
+    journal_off_ = true;
+    disconnect(&undo_, nullptr, this, nullptr);
     // Stop and join the worker while everything it reports to is still alive.
     delete worker_;
     worker_ = nullptr;
@@ -92,7 +104,12 @@ void CaseController::newCase() {
     case_path_.clear();
     recipe_ = recon::defaultRecipe();
     view_ = {};
+    // The previous case was saved or its changes discarded (the caller asked): its journal goes.
+    discardJournal();
+    journal_off_ = true;
     undo_.clear();
+    journal_off_ = false;
+    journal_index_ = 0;
     extra_dirty_ = false;
     emit caseChanged();
     emit captureChanged();
@@ -105,6 +122,7 @@ void CaseController::newCase() {
 }
 
 void CaseController::openCapture(const QString& path) {
+    checkCaptureOutOfProcess(path);  // throws InputError: a damaged file never reaches the HDF5 library here
     auto reader = std::make_unique<core::CaptureReader>(path.toStdString());  // throws InputError
     newCase();
     core::CaseCapture cc;
@@ -119,6 +137,7 @@ void CaseController::openCapture(const QString& path) {
 }
 
 void CaseController::addCapture(const QString& path, bool activate) {
+    checkCaptureOutOfProcess(path);  // throws InputError
     core::CaptureReader probe(path.toStdString());  // throws InputError
     storeActiveState();
     core::CaseCapture cc;
@@ -129,6 +148,7 @@ void CaseController::addCapture(const QString& path, bool activate) {
     if (activate) setActiveCapture(doc_.captures.size() - 1);
     else emit caseChanged();  // the list of captures changed
     emit dirtyChanged(true);
+    journal(tr("Add capture %1").arg(QFileInfo(path).fileName()));
 }
 
 void CaseController::openCase(const QString& path, bool from_autosave) {
@@ -190,6 +210,7 @@ void CaseController::openActiveCapture() {
                                .arg(QString::fromStdString(c.path), QString::fromStdString(c.sha256));
     } else {
         try {
+            checkCaptureOutOfProcess(QString::fromStdString(c.path));
             reader_ = std::make_unique<core::CaptureReader>(c.path);
         } catch (const std::exception& e) {
             capture_problem_ = QString::fromStdString(e.what());
@@ -235,6 +256,8 @@ void CaseController::saveCase(const QString& path) {
     undo_.setClean();
     QFile::remove(QString::fromStdString(core::autosavePath(case_path_.toStdString())));
     QFile::remove(untitledAutosavePath());
+    discardJournal();  // the saved file holds every edit now
+    QFile::remove(untitledJournalFile());
     emit caseChanged();
     emit dirtyChanged(false);
 }
@@ -288,6 +311,52 @@ QString CaseController::displayName() const {
     return tr("Untitled case");
 }
 
+QString CaseController::untitledJournalFile() {
+    const QString dir = QStandardPaths::writableLocation(QStandardPaths::AppDataLocation);
+    return QString::fromStdString(core::journalPath((dir + "/untitled.umbracase").toStdString()));
+}
+
+QString CaseController::journalFile() const {
+    return case_path_.isEmpty() ? untitledJournalFile() : QString::fromStdString(core::journalPath(case_path_.toStdString()));
+}
+
+void CaseController::journal(const QString& what) {
+    if (journal_off_) return;
+    const QString path = journalFile();
+    try {
+        if (!journal_ || journal_->path() != path.toStdString()) {
+            if (journal_) journal_->discard();  // the case changed name (Save As): that journal is done
+            QDir().mkpath(QFileInfo(path).absolutePath());
+            journal_ = std::make_unique<core::EditJournal>(path.toStdString());
+        }
+        journal_->append(what.toStdString(), document());
+    } catch (const std::exception& e) {
+        if (!journal_error_shown_)
+            emit errorOccurred(tr("Edits cannot be journalled, so a crash could lose them: %1").arg(QString::fromStdString(e.what())));
+        journal_error_shown_ = true;
+    }
+}
+
+void CaseController::discardJournal() {
+    if (journal_) journal_->discard();
+    journal_.reset();
+}
+
+void CaseController::recoverFromJournal(const QString& case_path, const core::JournalRecovery& r) {
+    newCase();
+    doc_ = r.doc;
+    if (doc_.active_capture >= doc_.captures.size()) doc_.active_capture = 0;
+    case_path_ = case_path.isEmpty() ? QString() : QFileInfo(case_path).absoluteFilePath();
+    extra_dirty_ = true;
+    journal_off_ = true;  // opening the capture is not an edit
+    openActiveCapture();
+    journal_off_ = false;
+    emit caseChanged();
+    emit findingsChanged();
+    emit measurementsChanged();
+    emit dirtyChanged(true);
+}
+
 bool CaseController::isDirty() const { return extra_dirty_ || !undo_.isClean(); }
 
 void CaseController::markDirty() {
@@ -298,6 +367,7 @@ void CaseController::markDirty() {
 void CaseController::setTitle(const QString& t) {
     doc_.title = t.toStdString();
     markDirty();
+    journal(tr("Title"));
     emit caseChanged();
 }
 
@@ -308,6 +378,7 @@ void CaseController::setCaseText(const core::CaseDocument& t) {
     doc_.pertinent_negatives = t.pertinent_negatives;
     doc_.prior_comparison = t.prior_comparison;
     markDirty();
+    journal(tr("Case texts"));
     // Only a new title changes what other widgets show; the editor that sent the texts has them.
     if (retitled) emit caseChanged();
 }
@@ -343,6 +414,7 @@ bool CaseController::relocateCapture(const QString& path, bool accept_changed, Q
     }
     markDirty();
     openActiveCapture();
+    journal(tr("Relocate capture to %1").arg(path));
     return true;
 }
 

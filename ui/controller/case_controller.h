@@ -19,6 +19,7 @@
 #include "core/capture_file.h"
 #include "core/case_file.h"
 #include "core/drop_sizing.h"
+#include "core/edit_journal.h"
 #include "core/frame.h"
 #include "core/measurement.h"
 #include "core/parameters.h"
@@ -54,6 +55,18 @@ public:
     void recoverUntitled();
     /// Writes the autosave sibling of the case path (untitled: untitledAutosavePath()); returns its path.
     QString autosave();
+    /// The edit journal of the case: every edit (undoable or not) is appended and flushed to
+    /// disk before the call that made it returns (core/edit_journal.h). Beside the case file,
+    /// or for an untitled case in the app data folder ("untitled.umbracase.journal").
+    QString journalFile() const;
+    /// Journal file of an untitled case.
+    static QString untitledJournalFile();
+    /// Starts a case from a recovered journal: its last state, marked modified, named
+    /// `case_path` ("" = untitled). The journal file stays until the next edit replaces it
+    /// atomically or the case is saved.
+    void recoverFromJournal(const QString& case_path, const core::JournalRecovery& r);
+    /// Removes the journal (the user discarded the changes).
+    void discardJournal();
     /// Case document with the live recipe, view and measurements of the active capture folded in.
     core::CaseDocument document() const;
     QString casePath() const { return case_path_; }
@@ -340,6 +353,8 @@ private:
     void rebuildTopView();
     void setBusy(bool b);
     void markDirty();
+    /// Appends the current document to the journal as the edit `what` (see journalFile()).
+    void journal(const QString& what);
     void stopTopViewRun();
     /// Wraps a setter of per-capture state so that it first makes the capture active that was
     /// active when the edit was made (undo/redo after switching captures).
@@ -358,6 +373,10 @@ private:
     QString case_path_;
     bool extra_dirty_ = false;
     QUndoStack undo_;
+    std::unique_ptr<core::EditJournal> journal_;
+    int journal_index_ = 0;        ///< undo index the journal last recorded
+    bool journal_off_ = false;     ///< while a case is being replaced (no user edit)
+    bool journal_error_shown_ = false;
 
     std::unique_ptr<core::CaptureReader> reader_;
     QString capture_problem_;

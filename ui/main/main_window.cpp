@@ -23,6 +23,8 @@
 #include <QLabel>
 #include <QMenuBar>
 #include <QMessageBox>
+
+#include <optional>
 #include <QMimeData>
 #include <QPlainTextEdit>
 #include <QProgressBar>
@@ -777,6 +779,21 @@ bool MainWindow::openPath(const QString& path) {
         if (path.endsWith(".umbracase", Qt::CaseInsensitive) || path.endsWith(".autosave", Qt::CaseInsensitive)) {
             QString case_path = path;
             if (case_path.endsWith(".autosave")) case_path.chop(9);
+            // Leftovers of a save that was interrupted (the files themselves are intact).
+            core::removeStaleTemporaries(case_path.toStdString());
+            // The edit journal holds every edit up to the last one (newer than any autosave).
+            std::optional<core::JournalRecovery> jr;
+            try {
+                jr = core::EditJournal::recover(core::journalPath(case_path.toStdString()));
+            } catch (const std::exception& e) {
+                showError(tr("Cannot read the edit journal"), QString::fromStdString(e.what()));
+            }
+            if (jr && offerJournalRecovery(*jr, case_path)) {
+                ctl_->recoverFromJournal(case_path, *jr);
+                reportRecovery(*jr);
+                if (!ctl_->captureProblem().isEmpty()) offerRelocation();
+                return true;
+            }
             const QString as = QString::fromStdString(core::autosavePath(case_path.toStdString()));
             bool recover = false;
             const QFileInfo ai(as), ci(case_path);
@@ -799,6 +816,41 @@ bool MainWindow::openPath(const QString& path) {
         showError(tr("Cannot open"), QString::fromStdString(e.what()));
         return false;
     }
+    return true;
+}
+
+bool MainWindow::offerJournalRecovery(const core::JournalRecovery& r, const QString& case_path) {
+    if (opt_.recovery == Recovery::Recover) return true;
+    if (opt_.recovery == Recovery::Ignore || !opt_.interactive) return false;
+    QStringList edits;
+    for (size_t i = r.edits.size() > 12 ? r.edits.size() - 12 : 0; i < r.edits.size(); ++i) edits << QString::fromStdString(r.edits[i]);
+    return QMessageBox::question(this, tr("Recover unsaved edits?"),
+                                 tr("%1 had %n unsaved edit(s) when Umbra last stopped; the last ones were:\n%2\n\n"
+                                    "Recover them? (The case file is not changed until you save.)",
+                                    "", int(r.edits.size()))
+                                     .arg(case_path.isEmpty() ? tr("An untitled case") : case_path, edits.join("\n"))) == QMessageBox::Yes;
+}
+
+void MainWindow::reportRecovery(const core::JournalRecovery& r) {
+    QStringList edits;
+    for (auto& e : r.edits) edits << QString::fromStdString(e);
+    const QString m = tr("Recovered %n unsaved edit(s): %1", "", int(r.edits.size())).arg(edits.join(", "));
+    statusBar()->showMessage(m, 30000);
+    if (!opt_.interactive) std::fprintf(stderr, "umbra: %s\n", m.toLocal8Bit().constData());
+}
+
+bool MainWindow::recoverUntitledJournal() {
+    core::removeStaleTemporaries(QFileInfo(CaseController::untitledJournalFile()).path().toStdString() + "/untitled.umbracase");
+    std::optional<core::JournalRecovery> jr;
+    try {
+        jr = core::EditJournal::recover(CaseController::untitledJournalFile().toStdString());
+    } catch (const std::exception& e) {
+        showError(tr("Cannot read the edit journal"), QString::fromStdString(e.what()));
+        return false;
+    }
+    if (!jr || !offerJournalRecovery(*jr, QString())) return false;
+    ctl_->recoverFromJournal(QString(), *jr);
+    reportRecovery(*jr);
     return true;
 }
 
@@ -1304,6 +1356,7 @@ void MainWindow::closeEvent(QCloseEvent* e) {
         // Saved or deliberately discarded: the auto-saves are no longer needed.
         if (!ctl_->casePath().isEmpty() && (!ctl_->isDirty() || opt_.interactive))
             QFile::remove(QString::fromStdString(core::autosavePath(ctl_->casePath().toStdString())));
+        if (!ctl_->isDirty() || opt_.interactive) ctl_->discardJournal();
         if (opt_.interactive) {
             QFile::remove(CaseController::untitledAutosavePath());
             saveLayout();

@@ -10,6 +10,7 @@
 #include <functional>
 #include <vector>
 
+#include "core/edit_journal.h"
 #include "ui/viewer/scene_painter.h"
 
 class QAction;
@@ -59,7 +60,12 @@ public:
     CurvePanel* curvePanel() const { return curve_; }
 
     /// Opens a capture (.h5) or a case (.umbracase). Returns false (after telling the user) on error.
+    /// A case with an edit journal is recovered from it (per the Recovery option), and the
+    /// status bar lists the recovered edits.
     bool openPath(const QString& path);
+    /// At start: recovers an untitled case from its edit journal (per the Recovery option).
+    /// True when it did.
+    bool recoverUntitledJournal();
     /// Saves the case to `path` (Save As when empty and untitled). Returns false on error/cancel.
     bool saveCaseTo(const QString& path);
     /// Opens the weld demo case: DIR/weld_coupon.h5 with DIR/reference_block.h5 as its second
@@ -111,6 +117,8 @@ protected:
     void dropEvent(QDropEvent*) override;
 
 private:
+    bool offerJournalRecovery(const core::JournalRecovery& r, const QString& case_path);
+    void reportRecovery(const core::JournalRecovery& r);
     void buildActions();
     /// Ends practice mode (tools unlocked, practice dock hidden) when another capture or case opens.
     void leavePractice();
