@@ -27,7 +27,7 @@ fi
 launcher=()
 command -v ccache >/dev/null && launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache -DCMAKE_C_COMPILER_LAUNCHER=ccache)
 cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_C_COMPILER=clang -DCMAKE_CXX_COMPILER=clang++ \
-      -DUMBRA_FUZZ=ON -DUMBRA_BUILD_UI=OFF -DUMBRA_BUILD_TESTS=OFF -DUMBRA_BUILD_BENCHMARKS=OFF "${launcher[@]}" >/dev/null
+      -DUMBRA_FUZZ=ON -DUMBRA_STATIC_HDF5=OFF -DUMBRA_BUILD_UI=OFF -DUMBRA_BUILD_TESTS=OFF -DUMBRA_BUILD_BENCHMARKS=OFF "${launcher[@]}" >/dev/null
 cmake --build "$build" -j2 --target $(for t in $targets; do printf 'fuzz_%s ' "$t"; done)
 # HDF5 targets: the HDF5 library (1.10) has memory errors of its own on some damaged files
 # (captures are therefore read in a child process first). Those targets run in libFuzzer's fork

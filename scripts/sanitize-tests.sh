@@ -18,7 +18,7 @@ launcher=()
 command -v ccache >/dev/null && launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache -DCMAKE_C_COMPILER_LAUNCHER=ccache)
 # RelWithDebInfo: optimised like the release build (the suite's run time stays reasonable),
 # with line numbers in the reports. Benchmarks are not built (they are not tests).
-cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DUMBRA_SANITIZE=ON -DUMBRA_BUILD_BENCHMARKS=OFF "${launcher[@]}" >/dev/null
+cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DUMBRA_SANITIZE=ON -DUMBRA_STATIC_HDF5=OFF -DUMBRA_BUILD_BENCHMARKS=OFF "${launcher[@]}" >/dev/null
 if [ -n "${UMBRA_ASAN_TARGETS:-}" ]; then
   cmake --build "$build" -j"$jobs" --target $UMBRA_ASAN_TARGETS
 else

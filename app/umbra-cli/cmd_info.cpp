@@ -2,6 +2,7 @@
 #include <unistd.h>
 
 #include <cstdio>
+#include <cmath>
 #include <cstdlib>
 #include <filesystem>
 #include <nlohmann/json.hpp>
@@ -10,7 +11,11 @@
 #include "args.h"
 #include "commands.h"
 #include "core/capture_file.h"
+#include "core/dicom_image.h"
+#include "core/error.h"
 #include "core/isolated_check.h"
+#include "reconstruction/ray_path.h"
+#include "reconstruction/view_mode.h"
 
 namespace umbra::cli {
 namespace {
@@ -31,6 +36,7 @@ int headerSeconds() {
     }
     return 30;
 }
+
 
 std::vector<core::Problem> checkCaptureIsolated(const std::string& path, bool full) {
     return core::checkCaptureIsolated(path, full, headerSeconds());
@@ -96,6 +102,27 @@ int cmdInfo(const Argv& argv) {
                       {"surface_tilt_rad", h.medium.wedge->surface_tilt_rad}};
     else
         j["wedge"] = nullptr;
+    // Views the capture supports; with a wedge, its geometry checked and the refracted angles
+    // of the central ray (Snell's law from the incidence = tilt).
+    j["valid_modes"] = recon::validViewModes(h);
+    std::string geometry_problem;
+    if (h.medium.wedge) {
+        try {
+            recon::ViewGeometry::fromHeader(h);
+            const double inc = std::fabs(h.medium.wedge->surface_tilt_rad), cw = h.medium.wedge->speed_of_sound_m_s;
+            j["wedge"]["incidence_deg"] = inc * 180 / M_PI;
+            const double sl = c / cw * std::sin(inc);
+            j["wedge"]["refracted_l_deg"] = sl < 1 ? nlohmann::ordered_json(std::asin(sl) * 180 / M_PI) : nlohmann::ordered_json(nullptr);
+            if (h.medium.shear_speed_m_s) {
+                const double st = *h.medium.shear_speed_m_s / cw * std::sin(inc);
+                j["wedge"]["refracted_t_deg"] = st < 1 ? nlohmann::ordered_json(std::asin(st) * 180 / M_PI) : nlohmann::ordered_json(nullptr);
+            }
+        } catch (const core::SettingError& e) {
+            geometry_problem = e.what();
+            j["valid_modes"] = nlohmann::ordered_json::array();
+            j["wedge"]["problem"] = geometry_problem;
+        }
+    }
     if (!h.provenance.empty()) j["provenance"] = h.provenance;
     const auto warnings = core::headerWarnings(h);
     j["warnings"] = nlohmann::ordered_json::array();
@@ -129,10 +156,27 @@ int cmdInfo(const Argv& argv) {
     if (h.medium.attenuation_db_per_cm_mhz) o << ", " << fmt(*h.medium.attenuation_db_per_cm_mhz, 2) << " dB/cm/MHz";
     if (h.medium.thickness_m) o << ", thickness " << fmt(*h.medium.thickness_m * 1e3, 1) << " mm";
     o << "\nWedge        ";
-    if (h.medium.wedge)
-        o << fmt(h.medium.wedge->speed_of_sound_m_s, 0) << " m/s, tilt " << fmt(h.medium.wedge->surface_tilt_rad * 180 / M_PI, 1) << " deg\n";
-    else
+    if (h.medium.wedge) {
+        const auto& w = *h.medium.wedge;
+        o << fmt(w.speed_of_sound_m_s, 0) << " m/s, tilt " << fmt(w.surface_tilt_rad * 180 / M_PI, 1) << " deg, surface origin ("
+          << fmt(w.surface_origin_m[0] * 1e3, 2) << ", " << fmt(w.surface_origin_m[2] * 1e3, 2) << ") mm";
+        if (!geometry_problem.empty()) o << "\n             problem: " << geometry_problem;
+        else {
+            const auto& jw = j["wedge"];
+            o << "\n             central ray: " << (jw["refracted_l_deg"].is_null() ? std::string("L beyond critical angle")
+                                                                                 : "L " + fmt(jw["refracted_l_deg"].get<double>(), 1) + " deg");
+            if (jw.contains("refracted_t_deg"))
+                o << (jw["refracted_t_deg"].is_null() ? std::string(", T beyond critical angle")
+                                                     : ", T " + fmt(jw["refracted_t_deg"].get<double>(), 1) + " deg");
+            o << " in the part; images in the specimen frame";
+        }
+        o << "\n";
+    } else {
         o << "none (array on the surface)\n";
+    }
+    o << "Views        ";
+    for (size_t i = 0; i < j["valid_modes"].size(); ++i) o << (i ? " " : "") << j["valid_modes"][i].get<std::string>();
+    o << (j["valid_modes"].empty() ? "none\n" : "  (delay_model.mode)\n");
     for (auto& [k, v] : h.provenance) o << "Provenance   " << k << ": " << v << "\n";
     for (auto& w : warnings) o << "Warning      " << w.where << ": " << w.what << "\n";
     std::fputs(o.str().c_str(), stdout);

@@ -167,7 +167,7 @@ def case_timeout():
     check(rc == 0, f"simulate within its limit: exit {rc}: {err}")
     img = os.path.join(d, "small.image.h5")
     t0 = time.monotonic()
-    rc, out, err = run("reconstruct", cap, "-o", img, "--grid-mm", "-6:6:0:12:0.006", "--timeout", "0.5", timeout=300)
+    rc, out, err = run("reconstruct", cap, "-o", img, "--grid-mm", "-6:6:0:12:0.003", "--timeout", "0.5", timeout=300)
     seconds = time.monotonic() - t0
     check(rc == 124, f"reconstruct --timeout: exit {rc}: {err}")
     check("time limit of 0.5 s (--timeout)" in err, f"reconstruct message: {err}")
