@@ -21,6 +21,8 @@
 #include <cmath>
 #include <cstring>
 #include <filesystem>
+#include <unistd.h>
+#include <cstdio>
 #include <fstream>
 #include <memory>
 #include <mutex>
@@ -268,13 +270,27 @@ std::string conditionText(const OFCondition& st) { return st.text() ? std::strin
 DicomImage moduleReadBuffer(const uint8_t* data, size_t size, const std::string& name) {
     initDcmtk();
     if (size < 8) throw InputError(name, "", "is too short to be DICOM (" + std::to_string(size) + " bytes)");
-    DcmInputBufferStream in;
-    in.setBuffer(data, offile_off_t(size));
-    in.setEos();
+    // Read through a private temporary file, not a memory stream: from a memory stream the
+    // parser allocates each element's declared length before it knows whether the bytes exist
+    // (a 2.8 GB request from a 300-byte input); from a file, values longer than
+    // DCM_MaxReadLength are left on disk and checked against the file size before use.
+    std::string tmpl = (std::filesystem::temp_directory_path() / "umbra-dicom-XXXXXX").string();
+    const int fd = mkstemp(tmpl.data());
+    if (fd < 0) throw InputError(name, "", "cannot be read: no temporary file");
+    struct Remove {
+        std::string path;
+        ~Remove() { std::remove(path.c_str()); }
+    } remove{tmpl};
+    size_t done = 0;
+    while (done < size) {
+        const ssize_t w = ::write(fd, data + done, size - done);
+        if (w <= 0) break;
+        done += size_t(w);
+    }
+    ::close(fd);
+    if (done != size) throw InputError(name, "", "cannot be read: temporary file not written");
     DcmFileFormat ff;
-    ff.transferInit();
-    OFCondition st = ff.read(in, EXS_Unknown, EGL_noChange, DCM_MaxReadLength);
-    ff.transferEnd();
+    OFCondition st = ff.loadFile(OFFilename(tmpl.c_str()), EXS_Unknown, EGL_noChange, DCM_MaxReadLength, ERM_autoDetect);
     if (st.bad()) throw InputError(name, "", "cannot be parsed as DICOM (truncated or damaged): " + conditionText(st));
     return interpret(ff, name, size);
 }
