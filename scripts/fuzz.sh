@@ -41,7 +41,7 @@ classify() {  # $1 target binary, $2 input: prints "libhdf5", "umbra" or "none" 
   if [ $rc -eq 0 ]; then echo none; return; fi
   local first
   first=$(printf '%s\n' "$out" | grep -E '^ +#[0-9]+ ' |
-          grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libc\.so|libFuzzer|fuzzer::' | head -1 || true)
+          grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libc\.so|libFuzzer|fuzzer::| in (malloc|calloc|realloc|memalign|posix_memalign|operator new)' | head -1 || true)
   case "$first" in *libhdf5*) echo libhdf5 ;; *) echo umbra ;; esac
 }
 status=0
