@@ -24,6 +24,15 @@ else
   [ -f "tests/fuzz/fuzz_$what.cpp" ] || { echo "fuzz.sh: no target '$what' (tests/fuzz/fuzz_$what.cpp)" >&2; exit 2; }
   targets=$what
 fi
+# clang and its libFuzzer runtime (Debian 12: clang, libclang-rt-14-dev), installed when missing.
+if ! command -v clang++ >/dev/null || ! ls /usr/lib/llvm-*/lib/clang/*/lib/linux/libclang_rt.fuzzer-x86_64.a >/dev/null 2>&1; then
+  SUDO=""
+  [ "$(id -u)" -eq 0 ] || SUDO="sudo"
+  echo "fuzz.sh: installing clang and libclang-rt-14-dev"
+  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q --no-install-recommends clang libclang-rt-14-dev >/dev/null ||
+    { DEBIAN_FRONTEND=noninteractive $SUDO apt-get update -q >/dev/null &&
+      DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q --no-install-recommends clang libclang-rt-14-dev >/dev/null; }
+fi
 launcher=()
 command -v ccache >/dev/null && launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache -DCMAKE_C_COMPILER_LAUNCHER=ccache)
 cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_C_COMPILER=clang -DCMAKE_CXX_COMPILER=clang++ \
