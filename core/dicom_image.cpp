@@ -1,8 +1,6 @@
 // SPDX-License-Identifier: MIT
 #include "core/dicom_image.h"
 
-#include <dlfcn.h>
-
 #include <cstdlib>
 #include <cstring>
 #include <filesystem>
@@ -10,6 +8,7 @@
 #include <mutex>
 #include <nlohmann/json.hpp>
 
+#include "core/detail/module_loader.h"
 #include "core/dicom/dicom_module.h"
 #include "core/error.h"
 
@@ -17,54 +16,14 @@ namespace umbra::core {
 namespace {
 namespace fs = std::filesystem;
 
-// Places searched for libumbra_dicom.so, in order: $UMBRA_DICOM_MODULE (a file), beside the
-// running executable, ../lib/umbra/ from it (installed layout), then the build tree.
-std::vector<fs::path> moduleCandidates() {
-    std::vector<fs::path> out;
-    if (const char* env = std::getenv("UMBRA_DICOM_MODULE"); env && *env) out.emplace_back(env);
-    std::error_code ec;
-    const fs::path exe = fs::read_symlink("/proc/self/exe", ec);
-    if (!ec) {
-        out.push_back(exe.parent_path() / "libumbra_dicom.so");
-        out.push_back(exe.parent_path().parent_path() / "lib" / "umbra" / "libumbra_dicom.so");
-    }
-#ifdef UMBRA_DICOM_MODULE_BUILD_PATH
-    out.emplace_back(UMBRA_DICOM_MODULE_BUILD_PATH);
-#endif
-    return out;
-}
-
 UmbraDicomCallFn loadModule(std::string& why) {
-    static std::mutex m;
-    static UmbraDicomCallFn fn = nullptr;
-    static std::string failure;
-    std::lock_guard lock(m);
-    if (fn || !failure.empty()) {
-        why = failure;
-        return fn;
-    }
-    std::string tried;
-    for (const auto& p : moduleCandidates()) {
-        std::error_code ec;
-        if (!fs::exists(p, ec)) {
-            tried += (tried.empty() ? "" : ", ") + p.string();
-            continue;
-        }
-        void* h = dlopen(p.c_str(), RTLD_NOW | RTLD_LOCAL);
-        if (!h) {
-            const char* e = dlerror();
-            failure = "the DICOM module " + p.string() + " cannot be loaded: " + (e ? e : "unknown reason");
-            why = failure;
-            return nullptr;
-        }
-        fn = reinterpret_cast<UmbraDicomCallFn>(dlsym(h, UMBRA_DICOM_CALL_SYMBOL));
-        if (!fn) failure = "the DICOM module " + p.string() + " has no entry point " UMBRA_DICOM_CALL_SYMBOL;
-        why = failure;
-        return fn;
-    }
-    failure = "the DICOM module libumbra_dicom.so was not found (looked at " + tried + ")";
-    why = failure;
-    return nullptr;
+#ifdef UMBRA_DICOM_MODULE_BUILD_PATH
+    const char* build_path = UMBRA_DICOM_MODULE_BUILD_PATH;
+#else
+    const char* build_path = "";
+#endif
+    const detail::ModuleSpec spec{"DICOM module", "libumbra_dicom.so", "UMBRA_DICOM_MODULE", build_path, UMBRA_DICOM_CALL_SYMBOL};
+    return reinterpret_cast<UmbraDicomCallFn>(detail::loadModuleSymbol(spec, why));
 }
 
 // Runs one request in the module and turns its outcome back into the error it stands for.

@@ -2,8 +2,6 @@
 // PNG export of one frame. The image is colour-mapped here; layout, lettering and encoding live in
 // a module (libumbra_png.so, reconstruction/png/) loaded the first time a PNG is asked for, so
 // that its drawing library costs nothing at start-up of the commands that write no PNG.
-#include <dlfcn.h>
-
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
@@ -11,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "core/detail/module_loader.h"
 #include "core/error.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/png/png_plot.h"
@@ -18,56 +17,14 @@
 namespace umbra::recon {
 namespace {
 
-namespace fs = std::filesystem;
-
-// Places searched for the module, in order: $UMBRA_PNG_MODULE (a file), beside the running
-// executable, ../lib/umbra/ from it (installed layout), then the build tree it was built in.
-std::vector<fs::path> moduleCandidates() {
-    std::vector<fs::path> out;
-    if (const char* env = std::getenv("UMBRA_PNG_MODULE"); env && *env) out.emplace_back(env);
-    std::error_code ec;
-    const fs::path exe = fs::read_symlink("/proc/self/exe", ec);
-    if (!ec) {
-        out.push_back(exe.parent_path() / "libumbra_png.so");
-        out.push_back(exe.parent_path().parent_path() / "lib" / "umbra" / "libumbra_png.so");
-    }
-#ifdef UMBRA_PNG_MODULE_BUILD_PATH
-    out.emplace_back(UMBRA_PNG_MODULE_BUILD_PATH);
-#endif
-    return out;
-}
-
 UmbraPngWriteFn loadModule(std::string& why) {
-    static std::mutex m;
-    static UmbraPngWriteFn fn = nullptr;
-    static std::string failure;
-    std::lock_guard lock(m);
-    if (fn || !failure.empty()) {
-        why = failure;
-        return fn;
-    }
-    std::string tried;
-    for (const auto& p : moduleCandidates()) {
-        std::error_code ec;
-        if (!fs::exists(p, ec)) {
-            tried += (tried.empty() ? "" : ", ") + p.string();
-            continue;
-        }
-        void* h = dlopen(p.c_str(), RTLD_NOW | RTLD_LOCAL);
-        if (!h) {
-            const char* e = dlerror();
-            failure = "the PNG module " + p.string() + " cannot be loaded: " + (e ? e : "unknown reason");
-            why = failure;
-            return nullptr;
-        }
-        fn = reinterpret_cast<UmbraPngWriteFn>(dlsym(h, UMBRA_PNG_WRITE_SYMBOL));
-        if (!fn) failure = "the PNG module " + p.string() + " has no entry point " UMBRA_PNG_WRITE_SYMBOL;
-        why = failure;
-        return fn;
-    }
-    failure = "the PNG module libumbra_png.so was not found (looked at " + tried + ")";
-    why = failure;
-    return nullptr;
+#ifdef UMBRA_PNG_MODULE_BUILD_PATH
+    const char* build_path = UMBRA_PNG_MODULE_BUILD_PATH;
+#else
+    const char* build_path = "";
+#endif
+    const core::detail::ModuleSpec spec{"PNG module", "libumbra_png.so", "UMBRA_PNG_MODULE", build_path, UMBRA_PNG_WRITE_SYMBOL};
+    return reinterpret_cast<UmbraPngWriteFn>(core::detail::loadModuleSymbol(spec, why));
 }
 
 }  // namespace
