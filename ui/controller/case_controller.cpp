@@ -1,5 +1,6 @@
 // SPDX-License-Identifier: MIT
 #include "ui/controller/case_controller.h"
+#include "ui/report/case_images.h"
 
 #include <QDir>
 #include <QElapsedTimer>
@@ -602,17 +603,6 @@ std::string CaseController::colourMap() const {
     return names.empty() ? std::string() : names.front();
 }
 
-namespace {
-QImage rgbToImage(const std::vector<uint8_t>& rgb, size_t nx, size_t nz) {
-    QImage img(static_cast<int>(nx), static_cast<int>(nz), QImage::Format_RGB888);
-    if (rgb.size() < nx * nz * 3) {
-        img.fill(Qt::black);
-        return img;
-    }
-    for (size_t z = 0; z < nz; ++z) std::memcpy(img.scanLine(static_cast<int>(z)), rgb.data() + z * nx * 3, nx * 3);
-    return img;
-}
-}  // namespace
 
 void CaseController::rerender() {
     if (!envelope_ || !reader_) return;
@@ -623,7 +613,7 @@ void CaseController::rerender() {
         tgc_amp_ = tgc.envelope;
         sizing_setup_.reset();
         db_ = recon::logCompress(tgc, recipe_);
-        image_ = rgbToImage(recon::colourise(db_, recipe_), envelope_->nx(), envelope_->nz());
+        image_ = report::rgbImage(recon::colourise(db_, recipe_), envelope_->nx(), envelope_->nz());
     } catch (const std::exception& e) {
         emit errorOccurred(QString::fromStdString(e.what()));
         return;
@@ -675,7 +665,7 @@ void CaseController::rebuildTopView() {
         for (size_t i = 0; i < peak.size(); ++i)
             if (peak[i] > 0 && top > 0)
                 db[i] = static_cast<float>(std::clamp(20.0 * std::log10(peak[i] / top), -dr, 0.0));
-        top_image_ = rgbToImage(recon::colourise(db, recipe_), nx, nf);
+        top_image_ = report::rgbImage(recon::colourise(db, recipe_), nx, nf);
         for (size_t f = 0; f < nf; ++f)
             if (!have[f])
                 for (size_t x = 0; x < nx; ++x) top_image_.setPixelColor(static_cast<int>(x), static_cast<int>(f), QColor(40, 44, 52));

@@ -15,8 +15,6 @@
 
 namespace umbra::ui::report {
 
-namespace {
-
 QImage rgbImage(const std::vector<uint8_t>& rgb, size_t nx, size_t nz) {
     QImage img(static_cast<int>(nx), static_cast<int>(nz), QImage::Format_RGB888);
     if (rgb.size() < nx * nz * 3) {
@@ -26,6 +24,8 @@ QImage rgbImage(const std::vector<uint8_t>& rgb, size_t nx, size_t nz) {
     for (size_t z = 0; z < nz; ++z) std::memcpy(img.scanLine(static_cast<int>(z)), rgb.data() + z * nx * 3, nx * 3);
     return img;
 }
+
+namespace {
 
 QRectF extentOf(const core::Frame& f) {
     if (f.nx() == 0 || f.nz() == 0) return {};

@@ -30,6 +30,10 @@ class CaptureReader;
 
 namespace umbra::ui::report {
 
+/// An 8-bit RGB image [nz][nx][3] (as recon::colourise gives) as a QImage; black when `rgb` is
+/// shorter than nx × nz × 3.
+QImage rgbImage(const std::vector<uint8_t>& rgb, size_t nx, size_t nz);
+
 /// One reconstructed frame and what the display chain and the sizing tools make of it.
 struct FrameImage {
     core::Frame envelope;            ///< linear envelope before TCG
