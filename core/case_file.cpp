@@ -398,6 +398,7 @@ std::string caseToJson(const CaseDocument& doc, const std::string& base_dir, boo
                           {"centre_x_mm", c.view.centre_x_mm},
                           {"centre_z_mm", c.view.centre_z_mm},
                           {"tool", c.view.tool}};
+        if (!c.view.views.empty()) cj["view"]["views"] = c.view.views;
         json ms = json::array();
         for (const auto& m : c.measurements) ms.push_back(measurementJson(m));
         cj["measurements"] = ms;
@@ -520,6 +521,13 @@ CaseDocument caseFromJson(const std::string& text, const std::string& source, co
                 c.view.centre_x_mm = r.number(vj, vp, "centre_x_mm", 0.0);
                 c.view.centre_z_mm = r.number(vj, vp, "centre_z_mm", 0.0);
                 c.view.tool = r.text(vj, vp, "tool");
+                c.view.views = r.texts(vj, vp, "views");
+                if (c.view.views.size() > 64) r.fail(Reader::key(vp, "views"), "holds more than 64 views");
+                for (size_t k = 0; k < c.view.views.size(); ++k) {
+                    const std::string& v = c.view.views[k];
+                    if (v.empty() || v.size() > 16 || v.find_first_not_of("LT-") != std::string::npos)
+                        r.fail(Reader::index(Reader::key(vp, "views"), k), "must be a view name such as \"TT-T\" (letters L and T, one dash)");
+                }
             }
             if (const json* ms = r.array(cj, p, "measurements"))
                 for (size_t k = 0; k < ms->size(); ++k)

@@ -25,6 +25,9 @@ struct ViewState {
     double centre_x_mm = 0;    ///< view centre, mm
     double centre_z_mm = 0;
     std::string tool;          ///< active tool name, e.g. "caliper" ("" = none)
+    /// Views (delay_model.mode names, e.g. "TT-T") chosen for the views strip beside the large
+    /// view; empty = no strip. Names the capture cannot image are kept but not shown.
+    std::vector<std::string> views;
     bool operator==(const ViewState&) const = default;
 };
 

@@ -42,7 +42,7 @@ int main(int argc, char** argv) {
                             "Open a demo case from DIR: by default the weld (weld_coupon.h5 with reference_block.h5); "
                             "File > Demo cases offers the others.",
                             "DIR");
-    QCommandLineOption demoCase("demo-case", "With --demo: which demo case, weld or phantom.", "NAME", "weld");
+    QCommandLineOption demoCase("demo-case", "With --demo: which demo case: weld, wedge (the weld from a shear-wave wedge, with the views strip) or phantom.", "NAME", "weld");
     QCommandLineOption timings("timings", "Print display re-render and beamforming times to stderr.");
     QCommandLineOption shot("screenshot", "Wait for the image, grab the window to FILE (PNG) and quit.", "FILE");
     QCommandLineOption annotate("demo-annotate", "Place a demonstration -6 dB sizing, caliper and finding.");
@@ -166,7 +166,7 @@ int main(int argc, char** argv) {
     // Measure when the worker is idle (the top view's background frames share the cores).
     auto idle = [ctl] {
         const bool top_done = !ctl->topViewFits() || ctl->topViewFramesDone() >= ctl->frameCount();
-        return ctl->hasImage() && !ctl->isBusy() && top_done;
+        return ctl->hasImage() && !ctl->isBusy() && top_done && !ctl->isStripRunning();
     };
     if (opt.timings && ok && !screenshot) {
         auto* t = new QTimer(&w);

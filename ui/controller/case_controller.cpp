@@ -19,6 +19,7 @@
 #include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/tgc_stage.h"
+#include "reconstruction/view_mode.h"
 #include "ui/controller/capture_check.h"
 #include "ui/controller/value_command.h"
 
@@ -34,9 +35,19 @@ std::string findRecipeKey(const core::Recipe& r, const std::string& needle, bool
     return {};
 }
 
-CaseController::CaseController(QObject* parent) : QObject(parent), worker_(new BeamformWorker(this)) {
+CaseController::CaseController(QObject* parent)
+    : QObject(parent), worker_(new BeamformWorker(this)), strip_worker_(new BeamformWorker(this)) {
     recipe_ = recon::defaultRecipe();
     connect(worker_, &BeamformWorker::frameReady, this, &CaseController::onFrameReady);
+    connect(strip_worker_, &BeamformWorker::frameReady, this,
+            [this](quint64 gen, qulonglong frame, FramePtr img, double, double, bool) { onStripFrameReady(gen, frame, img); });
+    connect(strip_worker_, &BeamformWorker::failed, this, [this](quint64 gen, const QString& msg) {
+        if (gen != strip_generation_ || strip_running_.empty()) return;
+        strip_problems_[strip_running_] = msg;
+        strip_running_.clear();
+        emit stripChanged();
+        continueStrip();
+    });
     connect(worker_, &BeamformWorker::progress, this,
             [this](quint64 gen, qulonglong frame, double f, bool background) {
                 // Reports queued before a cancel arrive after it: nothing is running any more.
@@ -74,9 +85,11 @@ CaseController::~CaseController() {
     // The undo stack clears itself when destroyed (after the journal): that is no user edit.
     journal_off_ = true;
     disconnect(&undo_, nullptr, this, nullptr);
-    // Stop and join the worker while everything it reports to is still alive.
+    // Stop and join the workers while everything they report to is still alive.
     delete worker_;
     worker_ = nullptr;
+    delete strip_worker_;
+    strip_worker_ = nullptr;
 }
 
 // ---------------------------------------------------------------------------------- case
@@ -84,6 +97,7 @@ CaseController::~CaseController() {
 void CaseController::resetState() {
     ++generation_;
     worker_->cancel();
+    clearStrip();
     reader_.reset();
     capture_problem_.clear();
     cache_.clear();
@@ -225,6 +239,7 @@ void CaseController::openActiveCapture() {
     emit frameChanged(frame_);
     emit imageChanged();
     emit topViewChanged();
+    emit stripChanged();
     if (reader_) requestBeamform();
 }
 
@@ -457,17 +472,56 @@ void CaseController::editRecipe(const core::Recipe& r, const QString& what) {
     undo_.push(new RecipeEditCommand(what, recipe_, r, onThisCapture<core::Recipe>([this](const core::Recipe& v) { applyRecipe(v); })));
 }
 
+namespace {
+constexpr const char* kModeKey = "delay_model.mode";
+core::Recipe withMode(core::Recipe r, const std::string& mode) {
+    r.set(kModeKey, mode);
+    return r;
+}
+}  // namespace
+
 void CaseController::applyRecipe(const core::Recipe& r) {
     const bool display_only = recipe_ == r || recipe_.differsOnlyInDisplay(r);
+    // Another view of the same frame with the same settings: the strip may already hold it.
+    const std::string old_mode = recipe_.text(kModeKey), new_mode = r.text(kModeKey);
+    const core::Recipe a = withMode(recipe_, "L-L"), b = withMode(r, "L-L");
+    const bool view_only = !display_only && old_mode != new_mode && (a == b || a.differsOnlyInDisplay(b));
     recipe_ = r;
     emit recipeChanged();
     if (!reader_) return;
     if (display_only) {
         rerender();
         rebuildTopView();
+        for (const auto& [mode, f] : strip_frames_) strip_images_[mode] = renderFrame(*f);
+        if (!strip_frames_.empty()) emit stripChanged();
+    } else if (view_only) {
+        ++generation_;
+        worker_->cancel();
+        setBusy(false);
+        stopTopViewRun();
+        FramePtr was = envelope_;
+        cache_.clear();
+        top_image_ = QImage();
+        emit topViewChanged();
+        if (was && strip_frame_ == frame_) strip_frames_[old_mode] = was;  // the old large view joins the strip
+        auto it = strip_frames_.find(new_mode);
+        if (it != strip_frames_.end() && strip_frame_ == frame_) {
+            envelope_ = it->second;
+            cache_[frame_] = it->second;
+            emit statusMessage(tr("View %1 of frame %2 (beamformed for the strip)").arg(QString::fromStdString(new_mode)).arg(frame_ + 1));
+            rerender();
+            if (topViewFits() && frameCount() > 1) requestBeamform();  // the other frames, for the top view
+        } else {
+            requestBeamform();
+        }
+        for (const auto& [mode, f] : strip_frames_) strip_images_[mode] = renderFrame(*f);
+        emit stripChanged();
+        continueStrip();
     } else {
         ++generation_;
         cache_.clear();
+        clearStrip();
+        emit stripChanged();
         top_image_ = QImage();
         emit topViewChanged();
         requestBeamform();
@@ -495,10 +549,13 @@ void CaseController::setCurrentFrame(size_t f) {
     if (!reader_ || f >= frameCount() || f == frame_) return;
     frame_ = f;
     emit frameChanged(f);
+    clearStrip();
+    emit stripChanged();
     auto it = cache_.find(f);
     if (it != cache_.end()) {
         envelope_ = it->second;
         rerender();
+        continueStrip();
     } else {
         requestBeamform();
     }
@@ -584,6 +641,7 @@ void CaseController::onFrameReady(quint64 gen, qulonglong frame, FramePtr img, d
         setBusy(false);
         emit statusMessage(tr("Beamformed frame %1 in %2 s").arg(frame + 1).arg(seconds, 0, 'f', 2));
         rerender();
+        continueStrip();
     }
     if (topViewFits()) rebuildTopView();
 }
@@ -603,6 +661,15 @@ std::string CaseController::colourMap() const {
     return names.empty() ? std::string() : names.front();
 }
 
+
+QImage CaseController::renderFrame(const core::Frame& f) const {
+    try {
+        const core::Frame tgc = recon::applyTgc(f, reader_->header(), recipe_);
+        return report::rgbImage(recon::colourise(recon::logCompress(tgc, recipe_), recipe_), f.nx(), f.nz());
+    } catch (const std::exception&) {
+        return {};  // the large view reports the same problem
+    }
+}
 
 void CaseController::rerender() {
     if (!envelope_ || !reader_) return;
@@ -1164,6 +1231,97 @@ QString CaseController::coverageWarning(const core::Measurement& m) const {
     return tr("Outside the −6 dB coverage of view %1 (%2 dB at its centre): the view is weak there; confirm with another view")
         .arg(QString::fromStdString(coverage_ ? coverage_->mode : std::string("?")))
         .arg(*db, 0, 'f', 1);
+}
+
+// ---------------------------------------------------------------------------------- views
+
+std::string CaseController::largeView() const { return recipe_.text(kModeKey); }
+
+std::vector<std::string> CaseController::validViews() const {
+    return reader_ ? recon::validViewModes(reader_->header()) : std::vector<std::string>{};
+}
+
+void CaseController::setChosenViews(const std::vector<std::string>& modes) {
+    std::vector<std::string> next;
+    for (const auto& m : modes) {
+        const recon::ViewMode v = recon::parseViewMode(m);  // throws SettingError
+        if (reader_) recon::checkViewMode(reader_->header(), v, recipe_.number("delay_model.shear_speed_m_s"));
+        if (std::find(next.begin(), next.end(), v.name) == next.end()) next.push_back(v.name);
+    }
+    if (next == view_.views) return;
+    view_.views = next;
+    markDirty();
+    QStringList names;
+    for (const auto& m : next) names << QString::fromStdString(m);
+    journal(next.empty() ? tr("Hide the views strip") : tr("Choose views %1").arg(names.join(", ")));
+    emit stripChanged();
+    continueStrip();
+}
+
+std::vector<std::string> CaseController::stripViews() const {
+    std::vector<std::string> out;
+    const std::string large = largeView();
+    for (const auto& m : view_.views)
+        if (m != large) out.push_back(m);
+    return out;
+}
+
+CaseController::StripTile CaseController::stripTile(const std::string& mode) const {
+    StripTile t;
+    if (auto it = strip_problems_.find(mode); it != strip_problems_.end()) t.problem = it->second;
+    if (auto it = strip_images_.find(mode); it != strip_images_.end()) t.image = it->second;
+    return t;
+}
+
+long CaseController::stripRuns() const { return strip_worker_->runs(); }
+
+void CaseController::showViewLarge(const std::string& mode) {
+    if (mode == largeView()) return;
+    editRecipeValue(kModeKey, mode);
+}
+
+void CaseController::clearStrip() {
+    ++strip_generation_;
+    if (strip_worker_) strip_worker_->cancel();
+    strip_running_.clear();
+    strip_frames_.clear();
+    strip_images_.clear();
+    strip_problems_.clear();
+    strip_frame_ = frame_;
+}
+
+void CaseController::continueStrip() {
+    if (!reader_ || busy_ || !strip_running_.empty() || !envelope_) return;
+    if (strip_frame_ != frame_) clearStrip();
+    for (const auto& mode : stripViews()) {
+        if (strip_frames_.count(mode) || strip_problems_.count(mode)) continue;
+        core::Recipe r;
+        try {
+            r = withMode(recipe_, mode);
+            recon::checkViewMode(reader_->header(), recon::parseViewMode(mode), r.number("delay_model.shear_speed_m_s"));
+            checkRecipe(r);
+        } catch (const std::exception& e) {
+            strip_problems_[mode] = QString::fromUtf8(e.what());
+            emit stripChanged();
+            continue;
+        }
+        strip_running_ = mode;
+        strip_worker_->request(++strip_generation_, reader_->path(), r, frame_, false, frameCount());
+        emit stripChanged();
+        return;
+    }
+}
+
+void CaseController::onStripFrameReady(quint64 gen, qulonglong frame, FramePtr img) {
+    if (gen != strip_generation_ || strip_running_.empty() || !reader_) return;
+    const std::string mode = strip_running_;
+    strip_running_.clear();
+    if (frame == strip_frame_ && frame == frame_) {
+        strip_frames_[mode] = img;
+        strip_images_[mode] = renderFrame(*img);
+    }
+    emit stripChanged();
+    continueStrip();
 }
 
 void CaseController::editWeld(const std::optional<core::WeldGeometry>& w, const QString& what) {

@@ -316,10 +316,44 @@ public:
     /// empty without a weld.
     std::vector<core::WeldPolyline> weldOverlay() const;
 
+    // ------------------------------------------------------------------ views (delay_model.mode)
+    /// The large view: the recipe's delay_model.mode ("L-L" by default).
+    std::string largeView() const;
+    /// Views the open capture can be imaged in (recon::validViewModes), in menu order.
+    std::vector<std::string> validViews() const;
+    /// Views chosen for the strip (saved with the capture in the case; may include the large one).
+    const std::vector<std::string>& chosenViews() const { return view_.views; }
+    /// Replaces the chosen views (order kept, duplicates dropped). Throws core::SettingError
+    /// naming the view when a name is not a view or the capture cannot image it (e.g. a skip
+    /// without a thickness); the choice is then unchanged. Journalled and marks the case modified.
+    void setChosenViews(const std::vector<std::string>& modes);
+    /// The small views of the strip now: the chosen views other than the large one.
+    std::vector<std::string> stripViews() const;
+    /// One small view of the current frame: its image (display settings of the recipe, dB re
+    /// its own peak) once beamformed, or what went wrong.
+    struct StripTile {
+        QImage image;     ///< null while it is being beamformed
+        QString problem;  ///< why it could not be made ("" = none)
+    };
+    StripTile stripTile(const std::string& mode) const;
+    /// True while a strip view of the current frame is still being beamformed.
+    bool isStripRunning() const { return !strip_running_.empty(); }
+    /// Number of strip beamforming runs started (tests).
+    long stripRuns() const;
+    /// Shows `mode` large: an undoable edit of delay_model.mode. A strip image of the current
+    /// frame is taken over at once (no second beamforming run; the travel-time tables of every
+    /// view stay cached in any case). Throws core::SettingError like editRecipeValue.
+    void showViewLarge(const std::string& mode);
+
     // ------------------------------------------------------------------ view state
     core::ViewState viewState() const { return view_; }
-    /// Stored with the case; the image view pushes it here (not an undoable edit).
-    void setViewState(const core::ViewState& v) { view_ = v; }
+    /// Stored with the case; the image view pushes it here (not an undoable edit). The chosen
+    /// views are kept (setChosenViews changes them).
+    void setViewState(const core::ViewState& v) {
+        auto views = std::move(view_.views);
+        view_ = v;
+        view_.views = std::move(views);
+    }
 
 signals:
     void caseChanged();           ///< new/open/save: path, title or document replaced
@@ -332,6 +366,7 @@ signals:
     void findingsChanged();
     void curveChanged();          ///< distance–amplitude curve set, changed or cleared
     void weldChanged();           ///< weld geometry set, changed or removed
+    void stripChanged();          ///< chosen views, or a strip image, changed
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
@@ -366,6 +401,13 @@ private:
     void forEachPixelIn(const core::Measurement& m, F&& f) const;
     std::optional<Peak> peakOf(const core::Measurement& m, const std::vector<float>& amp) const;
     void onFrameReady(quint64 gen, qulonglong frame, FramePtr img, double seconds, double fidelity, bool background);
+    /// Display image of a linear envelope with the recipe's TCG, log compression and colours.
+    QImage renderFrame(const core::Frame& f) const;
+    /// Drops the strip's frames (another frame, recipe or capture) and stops its run.
+    void clearStrip();
+    /// Starts beamforming the next strip view that has neither an image nor a problem.
+    void continueStrip();
+    void onStripFrameReady(quint64 gen, qulonglong frame, FramePtr img);
     core::CaseCapture& active();
     const core::CaseCapture* activeOrNull() const;
 
@@ -406,6 +448,14 @@ private:
     bool busy_ = false;
     bool top_running_ = false;
     std::vector<core::Measurement> empty_;
+
+    BeamformWorker* strip_worker_ = nullptr;  ///< the strip's views, one at a time, after the large one
+    quint64 strip_generation_ = 0;
+    size_t strip_frame_ = 0;                  ///< frame the strip's images belong to
+    std::string strip_running_;               ///< view being beamformed ("" = none)
+    std::map<std::string, FramePtr> strip_frames_;  ///< linear envelopes by view (current frame)
+    std::map<std::string, QImage> strip_images_;
+    std::map<std::string, QString> strip_problems_;
 };
 
 /// Key of the first recipe parameter whose stage or name contains `needle` ("" if none).

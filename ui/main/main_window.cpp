@@ -65,6 +65,7 @@
 #include "ui/trace/trace_view.h"
 #include "ui/viewer/cine_controls.h"
 #include "ui/viewer/image_view.h"
+#include "ui/viewer/views_strip.h"
 #include "ui/weld/weld_dialog.h"
 #include "reconstruction/das_stage.h"
 #include "core/uncertainty.h"
@@ -75,7 +76,16 @@ MainWindow::MainWindow(Options options, QWidget* parent)
     : QMainWindow(parent), opt_(options), ctl_(new CaseController(this)) {
     setObjectName("UmbraMainWindow");
     view_ = new ImageView(ctl_, this);
-    setCentralWidget(view_);
+    // The large view above the strip of the other chosen views (hidden when there are none).
+    auto* centre = new QWidget(this);
+    auto* centre_layout = new QVBoxLayout(centre);
+    centre_layout->setContentsMargins(0, 0, 0, 0);
+    centre_layout->setSpacing(0);
+    centre_layout->addWidget(view_, 1);
+    strip_ = new ViewsStrip(ctl_, centre);
+    centre_layout->addWidget(strip_);
+    connect(strip_, &ViewsStrip::problem, this, [this](const QString& t, const QString& m) { showError(t, m); });
+    setCentralWidget(centre);
     setAcceptDrops(true);
     setDockNestingEnabled(true);
     buildDocks();
@@ -260,6 +270,7 @@ void MainWindow::buildActions() {
     demo_menu_ = file->addMenu(tr("Demo cases"));
     demo_menu_->setToolTip(tr("Synthetic demonstration cases (available after umbra --demo DIR)"));
     demo_menu_->addAction(tr("Weld W-031 with its reference block"), this, [this] { openDemoCase(demo_dir_, QStringLiteral("weld")); });
+    demo_menu_->addAction(tr("Weld W-031 from a shear-wave wedge (views)"), this, [this] { openDemoCase(demo_dir_, QStringLiteral("wedge")); });
     demo_menu_->addAction(tr("Phantom P-2 (sonography practice)"), this, [this] { openDemoCase(demo_dir_, QStringLiteral("phantom")); });
     demo_menu_->setEnabled(false);
     file->addSeparator();
@@ -502,6 +513,9 @@ void MainWindow::buildActions() {
     a->setChecked(view_->coverageVisible());
     a->setToolTip(tr("−6 dB (dashed) and −12 dB (dotted) contours of the view's sensitivity: element directivity, spreading and "
                      "interface losses for a point reflector (reconstruction/coverage.h). A measurement outside −6 dB is warned about."));
+    a = view->addAction(tr("Views &strip…"), strip_, &ViewsStrip::chooseViews);
+    a->setShortcut(QKeySequence(Qt::Key_V));
+    a->setToolTip(tr("Choose the views (delay_model.mode) shown small beside the large one; click one to show it large"));
     a = view->addAction(tr("&Cancel reconstruction"), ctl_, &CaseController::cancelReconstruction);
     a->setShortcut(QKeySequence(Qt::CTRL | Qt::Key_Period));
     view->addSeparator();
@@ -1214,15 +1228,15 @@ void MainWindow::updateReferenceWarning() {
 
 bool MainWindow::openDemo(const QString& dir) { return openDemoCase(dir, QStringLiteral("weld")); }
 
-QStringList MainWindow::demoCaseNames() { return {QStringLiteral("weld"), QStringLiteral("phantom")}; }
+QStringList MainWindow::demoCaseNames() { return {QStringLiteral("weld"), QStringLiteral("wedge"), QStringLiteral("phantom")}; }
 
 bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
-    const bool weld = name == "weld";
-    if (!weld && name != "phantom") {
+    const bool weld = name == "weld", wedge = name == "wedge";
+    if (!weld && !wedge && name != "phantom") {
         showError(tr("Unknown demo case"), tr("There is no demo case \"%1\"; the demo cases are: %2.").arg(name, demoCaseNames().join(", ")));
         return false;
     }
-    const QString main = dir + (weld ? "/weld_coupon.h5" : "/phantom_p2.h5");
+    const QString main = dir + (weld ? "/weld_coupon.h5" : wedge ? "/weld_coupon_wedge.h5" : "/phantom_p2.h5");
     if (!QFileInfo::exists(main)) {
         showError(tr("Demo not found"), tr("%1 does not exist. Make the demo captures first: cmake --build build --target samples").arg(main));
         return false;
@@ -1248,6 +1262,20 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
             hint = tr("Demo: this frame (y = 0 mm) crosses a fusion-face reflector near 10 mm depth, right of the weld centre. "
                       "Press S and drag a box around it to size it at −6 dB, then Ctrl+F for a finding. "
                       "The top view (bottom right) shows the reflector along the weld.");
+        } else if (wedge) {
+            t.title = "Weld W-031, spool 14, shear-wave wedge (synthetic demo)";
+            t.background = "Production weld, 5 % random selection for volumetric examination under the shop's written procedure; "
+                           "64-element array on a 36° wedge from the +x side, about 55° shear in the steel.";
+            // The skip views see the lack of fusion on the +x fusion face; the direct shear view
+            // sees mostly its tips. Show the double skip large, the others small.
+            core::Recipe r = ctl_->recipe();
+            r.set("delay_model.mode", "TT-TT");
+            ctl_->applyRecipe(r);
+            ctl_->setChosenViews({"TT-TT", "T-T", "TT-T", "T-TT"});
+            if (ctl_->frameCount() > 1) ctl_->setCurrentFrame(1);
+            hint = tr("Demo: the large view TT-TT (shear, skipped off the back wall both ways) shows the lack of fusion on the "
+                      "+x fusion face, 9.5–12.5 mm deep near x = −34 mm. Click a small view below to show it large. "
+                      "Press T and drag a box round the two tip echoes to size its height.");
         } else {
             t.title = "Phantom P-2 (synthetic demo)";
             t.background = "Invented tissue-mimicking training phantom: wires, a 6 mm anechoic cyst and a +6 dB inclusion.";
@@ -1261,6 +1289,15 @@ bool MainWindow::openDemoCase(const QString& dir, const QString& name) {
             core::WeldGeometry g;
             g.shape = core::WeldShape::V;
             g.thickness_mm = 20;
+            g.bevel_angle_deg = 30;
+            g.root_gap_mm = 2;
+            ctl_->setWeld(g);
+        } else if (wedge) {
+            // The same weld seen from the wedge: its centre 40 mm on the -x side of the array.
+            core::WeldGeometry g;
+            g.shape = core::WeldShape::V;
+            g.thickness_mm = 20;
+            g.centre_x_mm = -40;
             g.bevel_angle_deg = 30;
             g.root_gap_mm = 2;
             ctl_->setWeld(g);

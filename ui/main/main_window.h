@@ -34,6 +34,7 @@ class PracticePanel;
 class RecipePanel;
 class TraceView;
 class TopView;
+class ViewsStrip;
 enum class Tool;
 
 /// What to do when a case has an autosave newer than itself.
@@ -55,6 +56,7 @@ public:
 
     CaseController* controller() const { return ctl_; }
     ImageView* imageView() const { return view_; }
+    ViewsStrip* viewsStrip() const { return strip_; }
     RecipePanel* recipePanel() const { return recipe_; }
     TraceView* traceView() const { return trace_; }
     CurvePanel* curvePanel() const { return curve_; }
@@ -158,6 +160,7 @@ private:
     Options opt_;
     CaseController* ctl_;
     ImageView* view_;
+    ViewsStrip* strip_ = nullptr;
     RecipePanel* recipe_ = nullptr;
     TraceView* trace_ = nullptr;
     TopView* top_ = nullptr;

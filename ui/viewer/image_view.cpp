@@ -134,7 +134,12 @@ void ImageView::onImageChanged() {
     update();
 }
 
-void ImageView::updateLayout() { vt_.setViewport(imageArea(QRectF(rect()), style_)); }
+void ImageView::updateLayout() {
+    // A view at "fit" stays fitted when the widget changes size (e.g. the views strip appears).
+    const bool was_fit = !last_extent_.isNull() && vt_.isFit();
+    vt_.setViewport(imageArea(QRectF(rect()), style_));
+    if (was_fit) vt_.fit();
+}
 
 void ImageView::resizeEvent(QResizeEvent*) { updateLayout(); }
 
@@ -164,6 +169,9 @@ Scene ImageView::scene() const {
             }
         }
     if (show_weld_) s.weld = ctl_->weldOverlay();
+    // Name the view wherever more than one is in play (a wedge, another view, a strip).
+    if (ctl_->hasCapture() && (ctl_->largeView() != "L-L" || ctl_->header().medium.wedge || !ctl_->stripViews().empty()))
+        s.view_label = tr("view %1").arg(QString::fromStdString(ctl_->largeView()));
     if (show_coverage_)
         if (const recon::CoverageMap* c = ctl_->coverage()) {
             std::vector<double> xs, zs;

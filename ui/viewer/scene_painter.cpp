@@ -464,6 +464,20 @@ void paintScene(QPainter& p, const QRectF& whole, const ViewTransform& vt, const
         for (const auto& l : segs) p.drawLine(QLineF(vt.toPixel(l.p1()), vt.toPixel(l.p2())));
     }
     for (const auto& m : sc.measurements) drawMeasurement(p, vt, m, sc, st);
+    if (!sc.view_label.isEmpty()) {
+        QFont f = base;
+        f.setPointSizeF(9 * k);
+        f.setBold(true);
+        p.setFont(f);
+        const QRectF box = QFontMetricsF(f).boundingRect(sc.view_label).adjusted(-5 * k, -2 * k, 5 * k, 2 * k);
+        const QRectF at(area.topLeft() + QPointF(6 * k, 6 * k), box.size());
+        p.setPen(Qt::NoPen);
+        p.setBrush(st.label_fill);
+        p.drawRoundedRect(at, 3 * k, 3 * k);
+        p.setPen(st.label_text_dark ? QColor(20, 20, 24) : QColor(235, 238, 244));
+        p.drawText(at, Qt::AlignCenter, sc.view_label);
+        p.setFont(base);
+    }
     p.restore();
 
     // Axes: x along the top (the array is there), depth down the left side.

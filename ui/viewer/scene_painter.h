@@ -40,6 +40,7 @@ struct Scene {
     std::vector<core::WeldPolyline> weld;               ///< weld overlay (specimen frame, mm); empty = none
     /// Coverage contours: level (dB re the view's best pixel) and its segments in mm.
     std::vector<std::pair<double, std::vector<QLineF>>> coverage;
+    QString view_label;  ///< the image's view, e.g. "view TT-T", in its top-left corner ("" = none)
 };
 
 /// Colours around the image: dark (screen) or light (print: white paper, dark text).
