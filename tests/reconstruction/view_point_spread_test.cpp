@@ -92,17 +92,18 @@ namespace {
 
 // A 32-element 5 MHz array on a 36 degree polymer wedge (2330 m/s) on 20 mm steel (5920 / 3240
 // m/s, handbook values from memory): about 55 degree shear beam towards -x (Snell's law), as
-// samples/weld_coupon_wedge.json with half the elements. Two points: one in the direct shear
-// beam (T-T), one reached after a skip off the back wall (TT-TT).
+// samples/weld_coupon_wedge.json with half the elements. Three points: one in the direct shear
+// beam (T-T), one seen half-skip (TT-T), one reached after a skip on both legs (TT-TT).
 nlohmann::json wedgeScene() {
     auto j = simtest::baseScene();
     j["title"] = "wedge point-spread scene (synthetic)";
     j["array"]["elements"] = 32;
     j["wedge"] = {{"speed_m_s", 2330}, {"angle_deg", -36}, {"height_mm", 12}};
-    j["paths"] = {{"modes", {"T-T", "TT-TT"}}, {"spreading", "2d"}};
+    j["paths"] = {{"modes", {"T-T", "TT-T", "TT-TT"}}, {"spreading", "2d"}};
     j["sampling"] = {{"frequency_mhz", 50}, {"samples", 2200}, {"start_time_us", 10}};
     j["medium"] = {{"speed_m_s", 5920}, {"shear_speed_m_s", 3240}, {"thickness_mm", 20}};
-    j["reflectors"] = {{"points", {{{"position_mm", {-13.0, 0.0, 9.0}}}, {{"position_mm", {-40.0, 0.0, 12.0}}}}}};
+    j["reflectors"] = {{"points",
+                        {{{"position_mm", {-13.0, 0.0, 9.0}}}, {{"position_mm", {-28.0, 0.0, 14.0}}}, {{"position_mm", {-40.0, 0.0, 12.0}}}}}};
     return j;
 }
 
@@ -170,13 +171,18 @@ Measured measurePoint(const core::Frame& f) {
 struct WedgeCase {
     const char* mode;
     double x_mm, z_mm;
+    const char* apodization;
+    const char* excluded;  // das.excluded_elements
+    double tolerance;      // relative
 };
 
 }  // namespace
 
-// The beamformer's own image of a point through the wedge, in the direct (T-T) and skip (TT-TT)
-// views: the −6 dB region's extents along x and z (what the −6 dB drop tool measures) agree with
-// the model's projected widths within 15 % (measured: within 8 %). Reference: the delay-and-sum image of a simulated
+// The beamformer's own image of a point through the wedge, in the direct (T-T), half-skip (TT-T)
+// and skip (TT-TT) views: the −6 dB region's extents along x and z (what the −6 dB drop tool
+// measures) agree with the model's projected widths within 15 % (measured: within 8 %). With
+// half the array excluded the window is half a Hann, not the Hann of K = 1.44 the model keeps:
+// within 25 % (measured: the image 18 % narrower in x than the model). Reference: the delay-and-sum image of a simulated
 // point (reconstruction/simulate, exact ray times, Gaussian pulse); the model is the k-space
 // derivation of view_point_spread.h (Soumekh, Fourier Array Imaging, 1994, from memory).
 TEST(ViewPointSpread, WedgeViewsMatchTheBeamformersImageOfAPoint) {
@@ -186,11 +192,17 @@ TEST(ViewPointSpread, WedgeViewsMatchTheBeamformersImageOfAPoint) {
     o.created_utc = "2026-01-01T00:00:00Z";
     recon::sim::simulateToFile(recon::sim::parseScene(wedgeScene().dump(), "wedge_psf.json"), path, o);
     core::CaptureReader cap(path);
-    for (const WedgeCase& c : {WedgeCase{"T-T", -13.0, 9.0}, WedgeCase{"TT-TT", -40.0, 12.0}})
-        for (const char* apod : {"hann", "rectangular"}) {
+    const WedgeCase cases[] = {{"T-T", -13, 9, "hann", "", 0.15},        {"T-T", -13, 9, "rectangular", "", 0.15},
+                               {"TT-T", -28, 14, "hann", "", 0.15},      {"TT-T", -28, 14, "rectangular", "", 0.15},
+                               {"TT-TT", -40, 12, "hann", "", 0.15},     {"TT-TT", -40, 12, "rectangular", "", 0.15},
+                               {"T-T", -13, 9, "hann", "17-32", 0.25}};
+    for (const WedgeCase& c : cases) {
+        {
+            const char* apod = c.apodization;
             auto r = recon::defaultRecipe();
             r.set("delay_model.mode", c.mode);
             r.setText("das.apodization", apod);
+            if (*c.excluded) r.set("das.excluded_elements", c.excluded);
             r.set("das.interpolation", "cubic");
             testutil::setRegion(r, c.x_mm - 3, c.x_mm + 3, c.z_mm - 2, c.z_mm + 2, 0.02);
             recon::Reconstructor rec(cap, r, 2);
@@ -198,13 +210,13 @@ TEST(ViewPointSpread, WedgeViewsMatchTheBeamformersImageOfAPoint) {
             const Measured m = measurePoint(f);
             const auto model = recon::viewPointSpread(r, cap.header()).at(m.px, m.pz);
             ASSERT_TRUE(model.valid);
-            std::printf("%-5s %-11s at (%.2f, %.2f) mm: image -6 dB extent x %.3f z %.3f mm (sections %.3f, %.3f); model x %.3f z %.3f "
+            std::printf("%-5s %-11s %-5s at (%.2f, %.2f) mm: image -6 dB extent x %.3f z %.3f mm (sections %.3f, %.3f); model x %.3f z %.3f "
                         "mm (across %.3f, along %.3f, ray %.1f deg, spans %.1f/%.1f deg)\n",
-                        c.mode, apod, m.px * 1e3, m.pz * 1e3, m.x_proj * 1e3, m.z_proj * 1e3, m.x_sec * 1e3, m.z_sec * 1e3,
+                        c.mode, apod, c.excluded, m.px * 1e3, m.pz * 1e3, m.x_proj * 1e3, m.z_proj * 1e3, m.x_sec * 1e3, m.z_sec * 1e3,
                         model.x_m * 1e3, model.z_m * 1e3, model.across_m * 1e3, model.along_m * 1e3, model.ray_angle_rad / kDeg,
                         model.span_tx_rad / kDeg, model.span_rx_rad / kDeg);
-            EXPECT_NEAR(m.x_proj, model.x_m, 0.15 * model.x_m) << c.mode << " " << apod;
-            EXPECT_NEAR(m.z_proj, model.z_m, 0.15 * model.z_m) << c.mode << " " << apod;
+            EXPECT_NEAR(m.x_proj, model.x_m, c.tolerance * model.x_m) << c.mode << " " << apod << " " << c.excluded;
+            EXPECT_NEAR(m.z_proj, model.z_m, c.tolerance * model.z_m) << c.mode << " " << apod << " " << c.excluded;
 
             // The sizing setup uses this model for the capture (no "assumes contact" note), and
             // the same from the facts an image file records (the linear array rebuilt from its x
@@ -228,5 +240,6 @@ TEST(ViewPointSpread, WedgeViewsMatchTheBeamformersImageOfAPoint) {
             for (const auto& n : fallback.context.notes) noted = noted || n.find("assumes contact") != std::string::npos;
             EXPECT_TRUE(noted);
         }
+    }
     std::filesystem::remove(path);
 }
