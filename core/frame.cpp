@@ -144,7 +144,10 @@ void ImageWriter::finish() {
                 {"centre_frequency_hz", &a.centre_frequency_hz}, {"fractional_bandwidth", &a.fractional_bandwidth},
                 {"speed_of_sound_m_s", &a.speed_of_sound_m_s},   {"array_x_min_m", &a.array_x_min_m},
                 {"array_x_max_m", &a.array_x_max_m},             {"array_pitch_m", &a.array_pitch_m},
-                {"elevation_beam_width_m", &a.elevation_beam_width_m}};
+                {"elevation_beam_width_m", &a.elevation_beam_width_m},
+        {"shear_speed_m_s", &a.shear_speed_m_s},             {"thickness_m", &a.thickness_m},
+        {"wedge_speed_m_s", &a.wedge_speed_m_s},             {"wedge_origin_x_m", &a.wedge_origin_x_m},
+        {"wedge_origin_z_m", &a.wedge_origin_z_m},           {"wedge_tilt_rad", &a.wedge_tilt_rad}};
             for (const auto& [name, v] : opt)
                 if (*v) writeDoubleAttr(I.file.get(), name, **v);
             if (a.wedge) writeIntAttr(I.file.get(), "wedge", 1);
@@ -239,7 +242,10 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
         {"centre_frequency_hz", &acq.centre_frequency_hz}, {"fractional_bandwidth", &acq.fractional_bandwidth},
         {"speed_of_sound_m_s", &acq.speed_of_sound_m_s},   {"array_x_min_m", &acq.array_x_min_m},
         {"array_x_max_m", &acq.array_x_max_m},             {"array_pitch_m", &acq.array_pitch_m},
-        {"elevation_beam_width_m", &acq.elevation_beam_width_m}};
+        {"elevation_beam_width_m", &acq.elevation_beam_width_m},
+        {"shear_speed_m_s", &acq.shear_speed_m_s},             {"thickness_m", &acq.thickness_m},
+        {"wedge_speed_m_s", &acq.wedge_speed_m_s},             {"wedge_origin_x_m", &acq.wedge_origin_x_m},
+        {"wedge_origin_z_m", &acq.wedge_origin_z_m},           {"wedge_tilt_rad", &acq.wedge_tilt_rad}};
     for (const auto& [name, v] : opt) {
         if (!attrExists(f.get(), name)) continue;
         err.clear();

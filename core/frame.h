@@ -29,6 +29,10 @@ struct AcquisitionFacts {
     std::optional<double> centre_frequency_hz, fractional_bandwidth, speed_of_sound_m_s;
     std::optional<double> array_x_min_m, array_x_max_m, array_pitch_m;  ///< element centres' x range and pitch
     std::optional<double> elevation_beam_width_m;  ///< −6 dB elevation beam width (scan-axis resolution)
+    /// Geometry of views and wedges for the view-aware point-spread model (attributes of the same
+    /// names, from the capture's /medium; absent when the capture has none, and in older files).
+    std::optional<double> shear_speed_m_s, thickness_m;
+    std::optional<double> wedge_speed_m_s, wedge_origin_x_m, wedge_origin_z_m, wedge_tilt_rad;
     bool wedge = false;  ///< the capture had a wedge or water path (attribute "wedge" = 1)
     std::string view_mode;    ///< view of the image, e.g. "TT-T" (attribute "view_mode"; empty = not recorded, L-L)
     std::string image_frame;  ///< "array" or "specimen" (attribute "image_frame"; empty = not recorded, array)

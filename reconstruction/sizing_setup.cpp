@@ -6,6 +6,8 @@
 #include "core/error.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/point_spread.h"
+#include "reconstruction/view_mode.h"
+#include "reconstruction/view_point_spread.h"
 
 namespace umbra::recon {
 
@@ -25,8 +27,31 @@ Acquisition acquisitionOf(const core::CaptureHeader& h) {
     }
     a.elevation_beam_width_m = h.array.elevation_beam_width_m;
     a.wedge = h.medium.wedge.has_value();
+    a.shear_speed_m_s = h.medium.shear_speed_m_s;
+    a.thickness_m = h.medium.thickness_m;
+    if (h.medium.wedge) {
+        a.wedge_speed_m_s = h.medium.wedge->speed_of_sound_m_s;
+        a.wedge_origin_x_m = h.medium.wedge->surface_origin_m[0];
+        a.wedge_origin_z_m = h.medium.wedge->surface_origin_m[2];
+        a.wedge_tilt_rad = h.medium.wedge->surface_tilt_rad;
+    }
     return a;
 }
+
+namespace {
+/// The view-aware model for a wedge capture or a view other than L-L, when the facts hold its
+/// geometry; nullopt for contact L-L (the contact model is exact there) or missing geometry.
+std::optional<ViewPointSpread> viewModel(const core::Recipe& recipe, const Acquisition& acq) {
+    ViewMode mode;
+    try {
+        mode = parseViewMode(recipe.text("delay_model.mode"));
+    } catch (const core::SettingError&) {
+        return std::nullopt;
+    }
+    if (!acq.wedge && mode.name == "L-L") return std::nullopt;
+    return viewPointSpread(recipe, acq);
+}
+}  // namespace
 
 core::Recipe recipeOfImage(const core::ImageStack& img, const std::string& path) {
     core::Recipe r = defaultRecipe();
@@ -49,9 +74,23 @@ SizingSetup sizingSetup(const core::Recipe& recipe, const Acquisition& acq, cons
     if (!have) {
         ctx.notes.push_back("the image does not record the array's centre frequency, bandwidth, speed or element positions: point-spread "
                             "widths unknown (re-run reconstruct to record them)");
+    } else if (const auto v = viewModel(recipe, acq)) {
+        // Views other than contact L-L: the ray-traced model of view_point_spread.h; the contact
+        // model where no path reaches the place.
+        const PointSpreadModel m = pointSpreadModel(recipe, c, *acq.centre_frequency_hz, *acq.fractional_bandwidth, *acq.array_x_min_m,
+                                                    *acq.array_x_max_m, acq.array_pitch_m.value_or(0));
+        ctx.resolution = [vm = *v, m](double x_mm, double z_mm) {
+            const auto w = vm.at(x_mm * 1e-3, z_mm * 1e-3);
+            if (w.valid) return core::LocalResolution{w.x_m * 1e3, w.z_m * 1e3};
+            const auto f = m.at(x_mm * 1e-3, z_mm * 1e-3);
+            return core::LocalResolution{f.lateral_m * 1e3, f.axial_m * 1e3};
+        };
     } else {
         if (acq.wedge)
             ctx.notes.push_back("wedge or water path: the point-spread model assumes contact and is approximate");
+        else if (const std::string mode = recipe.text("delay_model.mode"); mode != "L-L")
+            ctx.notes.push_back("view " + mode + ": the point-spread model assumes the L-L view and is approximate (the image does not "
+                                "record the view's geometry; re-run reconstruct to record it)");
         const PointSpreadModel m = pointSpreadModel(recipe, c, *acq.centre_frequency_hz, *acq.fractional_bandwidth, *acq.array_x_min_m,
                                                     *acq.array_x_max_m, acq.array_pitch_m.value_or(0));
         ctx.resolution = [m](double x_mm, double z_mm) {
