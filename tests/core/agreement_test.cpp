@@ -194,8 +194,8 @@ namespace {
 
 CaseDocument readerCase(const std::vector<std::tuple<double, double, Interpretation, Evaluation, double>>& f) {
     CaseDocument c;
-    c.captures.push_back({"/data/a.h5", std::string(64, 'a'), "", {}, {}});
-    c.captures.push_back({"/data/b.h5", std::string(64, 'b'), "", {}, {}});
+    c.captures.push_back({"/data/a.h5", std::string(64, 'a'), "", {}, {}, {}, {}});
+    c.captures.push_back({"/data/b.h5", std::string(64, 'b'), "", {}, {}, {}, {}});
     int n = 1;
     for (const auto& [x, z, in, ev, len] : f) {
         Finding fi;

@@ -62,7 +62,7 @@ CaseDocument firstReading(const fs::path& dir) {
         cc.path = cap.string();
         cc.sha256 = fileSha256(cap.string());
         cc.recipe_json = R"({"das":{"f_number":1.5}})";
-        cc.view = {4, 2.5, 3.25, 11.5, "caliper"};
+        cc.view = {4, 2.5, 3.25, 11.5, "caliper", {"T-T", "TT-T"}};
         cc.measurements.push_back({"M" + std::to_string(i + 1), MeasurementKind::Caliper, {{1, 2}, {3, 4}}, "Alpha label", 4});
         c.captures.push_back(cc);
     }

@@ -71,7 +71,7 @@ CaseDocument fullCase(const fs::path& dir) {
     c1.sha256 = fileSha256(cap1.string());
     // A recipe as the recipe code writes it (ordered keys, 2-space indent).
     c1.recipe_json = "{\n  \"das\": {\n    \"f_number\": 2.0,\n    \"mode\": \"tfm\"\n  },\n  \"log_compression\": {\n    \"dynamic_range_db\": 40.0\n  }\n}";
-    c1.view = {3, 2.5, -1.25, 12.5, "caliper"};
+    c1.view = {3, 2.5, -1.25, 12.5, "caliper", {"TT-T", "T-T", "L-L"}};
     c1.measurements.push_back({"M1", MeasurementKind::Caliper, {{1, 2}, {4, 6}}, "root to cap", 3});
     c1.measurements.push_back({"M2", MeasurementKind::DepthMarker, {{0.1, 12.3}}, "", 3});
     c1.measurements.push_back({"M3", MeasurementKind::ExtentBox, {{-2, 10}, {2.5, 11.75}}, "box", 4});
@@ -82,7 +82,7 @@ CaseDocument fullCase(const fs::path& dir) {
     CaseCapture c2;
     c2.path = cap2.string();
     c2.sha256 = fileSha256(cap2.string());
-    c2.view = {0, 1, 0.1 + 0.2, 1.0 / 3.0, ""};  // doubles that need all 17 digits
+    c2.view = {0, 1, 0.1 + 0.2, 1.0 / 3.0, "", {}};  // doubles that need all 17 digits
 
     d.captures = {c1, c2};
     d.weld = WeldGeometry{};

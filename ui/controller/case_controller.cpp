@@ -474,8 +474,13 @@ void CaseController::editRecipe(const core::Recipe& r, const QString& what) {
 
 namespace {
 constexpr const char* kModeKey = "delay_model.mode";
+/// The recipe's view; "L-L" for a recipe without views.
+std::string modeOf(const core::Recipe& r) { return r.has(kModeKey) ? r.text(kModeKey) : std::string("L-L"); }
+double shearOf(const core::Recipe& r) {
+    return r.has("delay_model.shear_speed_m_s") ? r.number("delay_model.shear_speed_m_s") : 0.0;
+}
 core::Recipe withMode(core::Recipe r, const std::string& mode) {
-    r.set(kModeKey, mode);
+    if (r.has(kModeKey)) r.set(kModeKey, mode);
     return r;
 }
 }  // namespace
@@ -483,7 +488,7 @@ core::Recipe withMode(core::Recipe r, const std::string& mode) {
 void CaseController::applyRecipe(const core::Recipe& r) {
     const bool display_only = recipe_ == r || recipe_.differsOnlyInDisplay(r);
     // Another view of the same frame with the same settings: the strip may already hold it.
-    const std::string old_mode = recipe_.text(kModeKey), new_mode = r.text(kModeKey);
+    const std::string old_mode = modeOf(recipe_), new_mode = modeOf(r);
     const core::Recipe a = withMode(recipe_, "L-L"), b = withMode(r, "L-L");
     const bool view_only = !display_only && old_mode != new_mode && (a == b || a.differsOnlyInDisplay(b));
     recipe_ = r;
@@ -1235,7 +1240,7 @@ QString CaseController::coverageWarning(const core::Measurement& m) const {
 
 // ---------------------------------------------------------------------------------- views
 
-std::string CaseController::largeView() const { return recipe_.text(kModeKey); }
+std::string CaseController::largeView() const { return modeOf(recipe_); }
 
 std::vector<std::string> CaseController::validViews() const {
     return reader_ ? recon::validViewModes(reader_->header()) : std::vector<std::string>{};
@@ -1245,7 +1250,7 @@ void CaseController::setChosenViews(const std::vector<std::string>& modes) {
     std::vector<std::string> next;
     for (const auto& m : modes) {
         const recon::ViewMode v = recon::parseViewMode(m);  // throws SettingError
-        if (reader_) recon::checkViewMode(reader_->header(), v, recipe_.number("delay_model.shear_speed_m_s"));
+        if (reader_) recon::checkViewMode(reader_->header(), v, shearOf(recipe_));
         if (std::find(next.begin(), next.end(), v.name) == next.end()) next.push_back(v.name);
     }
     if (next == view_.views) return;
@@ -1298,7 +1303,7 @@ void CaseController::continueStrip() {
         core::Recipe r;
         try {
             r = withMode(recipe_, mode);
-            recon::checkViewMode(reader_->header(), recon::parseViewMode(mode), r.number("delay_model.shear_speed_m_s"));
+            recon::checkViewMode(reader_->header(), recon::parseViewMode(mode), shearOf(r));
             checkRecipe(r);
         } catch (const std::exception& e) {
             strip_problems_[mode] = QString::fromUtf8(e.what());
