@@ -46,6 +46,17 @@ ViewMode parseViewMode(const std::string& name) {
                              "(e.g. L-L, T-T, TT-T)");
 }
 
+namespace {
+std::string legWords(const std::vector<Wave>& legs) {
+    auto wave = [](Wave w) { return std::string(w == Wave::L ? "longitudinal" : "shear"); };
+    if (legs.size() == 1) return wave(legs[0]) + " direct";
+    if (legs[0] == legs[1]) return wave(legs[0]) + " via the back wall";
+    return wave(legs[0]) + ", converted to " + wave(legs[1]) + " at the back wall";
+}
+}  // namespace
+
+std::string describeViewMode(const ViewMode& m) { return "transmit " + legWords(m.tx) + ", receive " + legWords(m.rx); }
+
 double viewShearSpeed(const core::CaptureHeader& h, double recipe_shear_m_s) {
     if (recipe_shear_m_s > 0) return recipe_shear_m_s;
     return h.medium.shear_speed_m_s.value_or(0.0);

@@ -23,6 +23,10 @@ struct ViewMode {
     bool usesBackWall() const { return tx.size() > 1 || rx.size() > 1; }
 };
 
+/// The view in words: "transmit shear via the back wall, receive shear direct" (legs only;
+/// the name is not repeated).
+std::string describeViewMode(const ViewMode& m);
+
 /// Every mode the delay_model.mode parameter offers, in menu order (L-L first).
 const std::vector<std::string>& viewModeNames();
 

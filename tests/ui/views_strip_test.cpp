@@ -116,11 +116,17 @@ TEST(views_strip_test, strip_views_are_shown_small_and_a_click_shows_one_large_w
     EXPECT_NEAR(px, kPointX, kShear / kF0 / 10);
     EXPECT_NEAR(pz, kPointZ, kShear / kF0 / 10);
 
+    // The technique names the view and the shear speed it used (the scene's 3240 m/s).
+    EXPECT_TRUE(ctl->techniqueText().contains("View: T-T (transmit shear direct, receive shear direct); shear speed 3240 m/s (from the capture)"))
+        << ctl->techniqueText().toStdString();
+    EXPECT_TRUE(ctl->techniqueLine().contains(", view T-T, shear 3240 m/s")) << ctl->techniqueLine().toStdString();
+
     // Undo: L-L large again, from the strip too.
     ctl->undoStack()->undo();
     EXPECT_EQ(ctl->largeView(), "L-L");
     EXPECT_EQ(ctl->image(), large_ll);
     EXPECT_EQ(ctl->beamformRuns(), runs);
+    EXPECT_FALSE(ctl->techniqueText().contains("View:")) << "contact L-L: nothing beyond the speed of sound";
 
     // A display-only change re-colours the strip without beamforming.
     core::Recipe r = ctl->recipe();

@@ -1671,6 +1671,28 @@ void CaseController::acceptMeasuredValues(const std::string& finding_id) {
     editFindings(after, tr("Update finding numbers from %1").arg(QString::fromStdString(finding_id)));
 }
 
+QString CaseController::viewText() const {
+    if (!reader_) return {};
+    const auto& h = reader_->header();
+    const std::string mode = largeView();
+    if (mode == "L-L" && !h.medium.wedge) return {};
+    try {
+        const recon::ViewMode v = recon::parseViewMode(mode);
+        QString s = tr("%1 (%2)").arg(QString::fromStdString(v.name), QString::fromStdString(recon::describeViewMode(v)));
+        const double cs = recon::viewShearSpeed(h, shearOf(recipe_));
+        if (v.usesShear() && cs > 0)
+            s += tr("; shear speed %1 m/s (%2)").arg(cs, 0, 'f', 0).arg(shearOf(recipe_) > 0 ? tr("recipe") : tr("from the capture"));
+        if (h.medium.wedge)
+            s += tr("; wedge %1 m/s, surface tilt %2°, image in the specimen frame")
+                     .arg(h.medium.wedge->speed_of_sound_m_s, 0, 'f', 0)
+                     .arg(h.medium.wedge->surface_tilt_rad * 180 / M_PI, 0, 'f', 1);
+        if (v.usesBackWall() && h.medium.thickness_m) s += tr("; back wall at %1 mm").arg(*h.medium.thickness_m * 1e3, 0, 'f', 1);
+        return s;
+    } catch (const std::exception&) {
+        return QString::fromStdString(mode);
+    }
+}
+
 QString CaseController::techniqueText() const {
     if (!reader_) return {};
     const auto& h = reader_->header();
@@ -1693,6 +1715,7 @@ QString CaseController::techniqueText() const {
                      .arg(rel * 100, 0, 'g', 2)
                      .arg(QString::fromStdString(medium));
     }
+    if (const QString v = viewText(); !v.isEmpty()) lines << tr("View: %1").arg(v);
     if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
         lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
                      .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)
@@ -1717,6 +1740,13 @@ QString CaseController::techniqueLine() const {
                     .arg(QString::fromUtf8(core::transmitLabel(h.transmit.kind)))
                     .arg(h.transmits())
                     .arg(speedMps(), 0, 'f', 0);
+    if (!viewText().isEmpty()) {
+        s += tr(", view %1").arg(QString::fromStdString(largeView()));
+        const double cs = recon::viewShearSpeed(h, shearOf(recipe_));
+        if (cs > 0 && recon::parseViewMode(largeView()).usesShear()) s += tr(", shear %1 m/s").arg(cs, 0, 'f', 0);
+        if (h.medium.wedge) s += tr(", wedge %1° at %2 m/s").arg(std::abs(h.medium.wedge->surface_tilt_rad) * 180 / M_PI, 0, 'f', 1)
+                                     .arg(h.medium.wedge->speed_of_sound_m_s, 0, 'f', 0);
+    }
     if (envelope_ && envelope_->nx() > 1)
         s += tr(", pixel %1 mm, amplitude fidelity %2 dB").arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3).arg(fidelity_db_, 0, 'f', 1);
     s += tr(", dynamic range %1 dB").arg(dynamicRangeDb(), 0, 'f', 0);

@@ -274,6 +274,9 @@ public:
     QString techniqueText() const;
     /// One line for exported images.
     QString techniqueLine() const;
+    /// The large view in words with the shear speed, wedge and back wall it uses; "" for L-L
+    /// without a wedge (nothing to say beyond the speed of sound).
+    QString viewText() const;
     /// Speed of sound the reconstruction uses, m/s (the recipe's, or the capture's when the recipe says 0).
     double speedMps() const;
     /// "5920 m/s (from the capture)" or "... (recipe; the capture records ...)".

@@ -28,19 +28,12 @@ constexpr int kMinTileWidth = 240;
 constexpr int kSpacing = 6;
 constexpr double kMaxStripShare = 0.45;  ///< of the centre's height
 
-QString legWords(const std::vector<recon::Wave>& legs) {
-    auto wave = [](recon::Wave w) { return w == recon::Wave::L ? QObject::tr("longitudinal") : QObject::tr("shear"); };
-    if (legs.size() == 1) return QObject::tr("%1 direct").arg(wave(legs[0]));
-    if (legs[0] == legs[1]) return QObject::tr("%1 via the back wall").arg(wave(legs[0]));
-    return QObject::tr("%1, converted to %2 at the back wall").arg(wave(legs[0]), wave(legs[1]));
-}
 }  // namespace
 
 QString describeView(const std::string& mode) {
     try {
         const recon::ViewMode v = recon::parseViewMode(mode);
-        return QObject::tr("%1: transmit %2, receive %3")
-            .arg(QString::fromStdString(v.name), legWords(v.tx), legWords(v.rx));
+        return QStringLiteral("%1: %2").arg(QString::fromStdString(v.name), QString::fromStdString(recon::describeViewMode(v)));
     } catch (const core::SettingError&) {
         return QString::fromStdString(mode);
     }
