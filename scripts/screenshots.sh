@@ -42,6 +42,14 @@ if command -v pdftoppm >/dev/null; then
   pdftoppm -r 80 -f 3 -l 3 -png -singlefile "$out/../weld-report.pdf.tmp" "$out/report-page"
 fi
 rm -f "$out/../weld-report.pdf.tmp"
+# The weld seen from a shear-wave wedge: TT-TT large with the weld overlay, T-T, TT-T and T-TT in
+# the views strip, tip sizing of the lack of fusion (box from the scene's truth, samples/weld_coupon_wedge.json).
+if [ -f "$samples/weld_coupon_wedge.h5" ]; then
+  run --demo "$samples" --demo-case wedge --demo-measurement "tip sizing;lack of fusion;-37,8;-31,14" \
+      --screenshot "$out/wedge-views.png" --export "$out/wedge-export.png" --timeout 240
+else
+  echo "screenshots: $samples/weld_coupon_wedge.h5 missing; wedge screenshots skipped" >&2
+fi
 # The Phantom P-2 demo case (its own case: no weld case text), an ellipse on the 6 mm anechoic
 # cyst at (-8, 25) mm (position from samples/phantom_p2.json) and a finding from it.
 if [ -f "$samples/phantom_p2.h5" ]; then
@@ -98,7 +106,7 @@ PY
   run "$tmpd/phantom_p2.dcm" --stored-caliper "$cal" --screenshot "$out/dicom.png"
   rm -rf "$tmpd"
 fi
-for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png "$out"/practice-result.png "$out"/practice-progress.png "$out"/dicom.png; do
+for f in "$out"/weld.png "$out"/weld-export.png "$out"/weld-export-light.png "$out"/wedge-views.png "$out"/wedge-export.png "$out"/report-page.png "$out"/phantom.png "$out"/dac.png "$out"/practice-result.png "$out"/practice-progress.png "$out"/dicom.png; do
   [ -f "$f" ] || continue
   /usr/bin/python3 - "$f" <<'PY'
 import struct, sys, zlib
