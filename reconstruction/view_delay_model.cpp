@@ -169,25 +169,32 @@ void ViewDelayModel::lookup(const TravelTimeTable* tab, const std::vector<Wave>&
                             const float* x, const float* z, size_t n, float* t) const {
     const size_t nx = grid_.nx(), nz = grid_.nz();
     const float* base = tab && element < tab->elements ? tab->t_s.data() + element * nx * nz : nullptr;
-    const double inv = 1 / grid_.step_m;
+    // Fast path: pixels on grid nodes (every pixel of the reconstructor's tiles) read the table.
+    const float inv = float(1 / grid_.step_m), x0 = float(grid_.x_min_m), z0f = float(grid_.z_min_m);
+    const int inx = int(nx), inz = int(nz);
+    size_t slow = 0;
     for (size_t i = 0; i < n; ++i) {
-        const double fx = (double(x[i]) - grid_.x_min_m) * inv, fz = (double(z[i]) - grid_.z_min_m) * inv;
-        if (base && fx >= -1e-3 && fz >= -1e-3 && fx <= double(nx - 1) + 1e-3 && fz <= double(nz - 1) + 1e-3) {
-            const long ix = std::lround(fx), iz = std::lround(fz);
-            if (std::fabs(fx - double(ix)) < 1e-3 && std::fabs(fz - double(iz)) < 1e-3) {  // a grid node
-                t[i] = base[size_t(iz) * nx + size_t(ix)];
-                continue;
-            }
+        const float fx = (x[i] - x0) * inv, fz = (z[i] - z0f) * inv;
+        const int ix = int(fx + 0.5f), iz = int(fz + 0.5f);
+        const bool node = base && fx > -0.5f && fz > -0.5f && ix < inx && iz < inz && std::fabs(fx - float(ix)) < 1e-2f &&
+                          std::fabs(fz - float(iz)) < 1e-2f;
+        if (node) t[i] = base[size_t(iz) * nx + size_t(ix)];
+        else t[i] = -1, ++slow;
+    }
+    if (slow == 0) return;
+    const double inv_d = 1 / grid_.step_m;
+    for (size_t i = 0; i < n; ++i) {
+        if (t[i] >= 0) continue;
+        const double fx = (double(x[i]) - grid_.x_min_m) * inv_d, fz = (double(z[i]) - grid_.z_min_m) * inv_d;
+        if (base && fx >= 0 && fz >= 0 && fx <= double(nx - 1) && fz <= double(nz - 1) && nx > 1 && nz > 1) {
             // Between nodes: bilinear (cells with a no-path corner fall through to the direct solve).
-            const size_t x0 = std::min(size_t(std::max(0.0, std::floor(fx))), nx > 1 ? nx - 2 : 0);
-            const size_t z0 = std::min(size_t(std::max(0.0, std::floor(fz))), nz > 1 ? nz - 2 : 0);
-            if (nx > 1 && nz > 1) {
-                const float a = base[z0 * nx + x0], b = base[z0 * nx + x0 + 1], c = base[(z0 + 1) * nx + x0], d = base[(z0 + 1) * nx + x0 + 1];
-                if (a < kNoPathTime && b < kNoPathTime && c < kNoPathTime && d < kNoPathTime) {
-                    const float u = float(fx - double(x0)), v = float(fz - double(z0));
-                    t[i] = (a + (b - a) * u) * (1 - v) + (c + (d - c) * u) * v;
-                    continue;
-                }
+            const size_t x0i = std::min(size_t(fx), nx - 2), z0i = std::min(size_t(fz), nz - 2);
+            const float a = base[z0i * nx + x0i], b = base[z0i * nx + x0i + 1], c = base[(z0i + 1) * nx + x0i],
+                        d = base[(z0i + 1) * nx + x0i + 1];
+            if (a < kNoPathTime && b < kNoPathTime && c < kNoPathTime && d < kNoPathTime) {
+                const float u = float(fx - double(x0i)), v = float(fz - double(z0i));
+                t[i] = (a + (b - a) * u) * (1 - v) + (c + (d - c) * u) * v;
+                continue;
             }
         }
         const RayPath r = geo_.path(pos, legs, x[i], z[i]);
