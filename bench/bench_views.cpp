@@ -6,6 +6,9 @@
 //                         table_MiB = the tables' memory
 //   BM_Frame/<view>       one frame with the tables cached (after a warm-up frame); counters
 //                         das_s = delay-and-sum seconds, frame_s = whole frame
+//   BM_Coverage/<view>    the coverage map of a view over the weld demo's image region (80 x 23 mm)
+//                         on the workstation's 0.25 mm map grid (tells whether it may run on the
+//                         GUI thread); counter pixels
 // Aim: a cached T-T frame within 3 x the contact L-L frame.
 #include <benchmark/benchmark.h>
 
@@ -13,6 +16,7 @@
 #include <random>
 
 #include "core/capture_file.h"
+#include "reconstruction/coverage.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/ray_path.h"
 #include "reconstruction/view_delay_model.h"
@@ -115,6 +119,27 @@ BENCHMARK(BM_Frame_ContactLL)->Unit(benchmark::kMillisecond)->UseRealTime()->Min
 BENCHMARK(BM_Frame_ContactLL_Full)->Unit(benchmark::kMillisecond)->UseRealTime()->MinTime(1.0);
 BENCHMARK(BM_Frame_WedgeTT)->Unit(benchmark::kMillisecond)->UseRealTime()->MinTime(1.0);
 BENCHMARK(BM_Frame_WedgeTT_T)->Unit(benchmark::kMillisecond)->UseRealTime()->MinTime(1.0);
+
+void coverage(benchmark::State& st, const char* mode) {
+    core::CaptureReader cap(makeCapture(true));
+    recon::Grid g;
+    g.x_min_m = -56e-3;
+    g.x_max_m = 24e-3;
+    g.z_min_m = 0;
+    g.z_max_m = 23e-3;
+    g.step_m = 0.25e-3;
+    size_t pixels = 0;
+    for (auto _ : st) {
+        auto m = recon::coverageMap(cap.header(), mode, g);
+        pixels = m.db.size();
+        benchmark::DoNotOptimize(m);
+    }
+    st.counters["pixels"] = double(pixels);
+}
+void BM_Coverage_TT(benchmark::State& st) { coverage(st, "T-T"); }
+void BM_Coverage_TTTT(benchmark::State& st) { coverage(st, "TT-TT"); }
+BENCHMARK(BM_Coverage_TT)->Unit(benchmark::kMillisecond)->UseRealTime();
+BENCHMARK(BM_Coverage_TTTT)->Unit(benchmark::kMillisecond)->UseRealTime();
 
 }  // namespace
 

@@ -26,8 +26,14 @@ TEST(coverage_warning_test, contours_and_warning_outside_minus_6_db) {
     auto* ctl = w.controller();
     ASSERT_TRUE(w.openPath(cap));
     ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
-    const recon::CoverageMap* c = ctl->coverage();
+    // Made off the GUI thread: nothing at first, the map once coverageReady has been emitted.
+    bool ready = false;
+    QObject::connect(ctl, &ui::CaseController::coverageReady, [&] { ready = true; });
+    EXPECT_EQ(ctl->coverageIfReady(), nullptr);
+    ASSERT_TRUE(waitUntil([&] { return ready; }));
+    const recon::CoverageMap* c = ctl->coverageIfReady();
     ASSERT_NE(c, nullptr);
+    EXPECT_EQ(ctl->coverage(), c) << "the waiting call returns the same map";
     EXPECT_EQ(c->mode, "L-L");
     // Independent: the same map from recon::coverageMap over the same grid.
     recon::Grid g;

@@ -39,6 +39,16 @@ CaseController::CaseController(QObject* parent)
     : QObject(parent), worker_(new BeamformWorker(this)), strip_worker_(new BeamformWorker(this)) {
     recipe_ = recon::defaultRecipe();
     connect(worker_, &BeamformWorker::frameReady, this, &CaseController::onFrameReady);
+    coverage_poll_ = new QTimer(this);
+    coverage_poll_->setInterval(50);
+    connect(coverage_poll_, &QTimer::timeout, this, [this] {
+        std::erase_if(coverage_stale_, [](auto& f) { return f.wait_for(std::chrono::seconds(0)) == std::future_status::ready; });
+        const bool ready = coverage_job_.valid() && coverage_job_.wait_for(std::chrono::seconds(0)) == std::future_status::ready;
+        if (!coverage_job_.valid() || ready) {
+            if (coverage_stale_.empty()) coverage_poll_->stop();
+            if (ready) emit coverageReady();
+        }
+    });
     connect(strip_worker_, &BeamformWorker::frameReady, this,
             [this](quint64 gen, qulonglong frame, FramePtr img, double, double, bool) { onStripFrameReady(gen, frame, img); });
     connect(strip_worker_, &BeamformWorker::failed, this, [this](quint64 gen, const QString& msg) {
@@ -1182,10 +1192,10 @@ std::vector<std::string> CaseController::calibrationLines() const {
     return out;
 }
 
-const recon::CoverageMap* CaseController::coverage() const {
-    if (!reader_ || !envelope_ || envelope_->nx() < 2 || envelope_->nz() < 2) return nullptr;
-    const std::string mode = recipe_.has("delay_model.mode") ? recipe_.text("delay_model.mode") : "L-L";
-    recon::Grid g;
+std::string CaseController::coverageKey(std::string* mode, recon::Grid* grid) const {
+    if (!reader_ || !envelope_ || envelope_->nx() < 2 || envelope_->nz() < 2) return {};
+    *mode = largeView();
+    recon::Grid& g = *grid;
     g.x_min_m = envelope_->x_m.front();
     g.x_max_m = envelope_->x_m.back();
     g.z_min_m = envelope_->z_m.front();
@@ -1193,19 +1203,57 @@ const recon::CoverageMap* CaseController::coverage() const {
     g.step_m = std::max(envelope_->x_m[1] - envelope_->x_m[0], kCoverageStepMm * 1e-3);
     std::ostringstream key;
     key.precision(17);
-    key << reader_->path() << '|' << mode << '|' << g.x_min_m << '|' << g.x_max_m << '|' << g.z_min_m << '|' << g.z_max_m << '|'
-        << g.step_m << '|' << speedMps();
-    if (coverage_ && coverage_key_ == key.str()) return &*coverage_;
-    coverage_.reset();
-    coverage_key_ = key.str();
-    try {
-        recon::CoverageOptions o;
-        o.threads = 2;
-        coverage_ = recon::coverageMap(reader_->header(), mode, g, o, &recipe_);
-    } catch (const std::exception&) {
-        return nullptr;  // the view cannot be mapped for this capture: no contours, no warning
+    key << reader_->path() << '|' << *mode << '|' << g.x_min_m << '|' << g.x_max_m << '|' << g.z_min_m << '|' << g.z_max_m << '|'
+        << g.step_m << '|' << speedMps() << '|' << shearOf(recipe_);
+    return key.str();
+}
+
+void CaseController::startCoverage(const std::string& key, const std::string& mode, const recon::Grid& g) const {
+    if (coverage_job_.valid() && coverage_job_key_ == key) return;
+    if (coverage_job_.valid()) coverage_stale_.push_back(std::move(coverage_job_));  // never wait for a superseded map
+    coverage_job_key_ = key;
+    coverage_job_ = std::async(std::launch::async, [h = reader_->header(), mode, g, r = recipe_]() -> std::optional<recon::CoverageMap> {
+        try {
+            recon::CoverageOptions o;
+            o.threads = 2;
+            return recon::coverageMap(h, mode, g, o, &r);
+        } catch (const std::exception&) {
+            return std::nullopt;  // the view cannot be mapped for this capture: no contours, no warning
+        }
+    });
+    if (!coverage_poll_->isActive()) coverage_poll_->start();
+}
+
+void CaseController::takeCoverage() const {
+    coverage_ = coverage_job_.get();
+    coverage_key_ = coverage_job_key_;
+    coverage_job_key_.clear();
+}
+
+const recon::CoverageMap* CaseController::coverageIfReady() const {
+    std::string mode;
+    recon::Grid g;
+    const std::string key = coverageKey(&mode, &g);
+    if (key.empty()) return nullptr;
+    if (coverage_key_ == key) return coverage_ ? &*coverage_ : nullptr;
+    if (coverage_job_.valid() && coverage_job_key_ == key) {
+        if (coverage_job_.wait_for(std::chrono::seconds(0)) != std::future_status::ready) return nullptr;
+        takeCoverage();
+        return coverage_ ? &*coverage_ : nullptr;
     }
-    return &*coverage_;
+    startCoverage(key, mode, g);
+    return nullptr;
+}
+
+const recon::CoverageMap* CaseController::coverage() const {
+    std::string mode;
+    recon::Grid g;
+    const std::string key = coverageKey(&mode, &g);
+    if (key.empty()) return nullptr;
+    if (coverage_key_ == key) return coverage_ ? &*coverage_ : nullptr;
+    startCoverage(key, mode, g);
+    takeCoverage();  // waits
+    return coverage_ ? &*coverage_ : nullptr;
 }
 
 std::optional<double> CaseController::coverageDbAt(double x_mm, double z_mm) const {

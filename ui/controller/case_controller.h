@@ -6,9 +6,11 @@
 #include <QImage>
 #include <QObject>
 #include <QString>
+#include <QTimer>
 #include <QUndoStack>
 
 #include <functional>
+#include <future>
 #include <map>
 #include <memory>
 #include <optional>
@@ -300,7 +302,12 @@ public:
     /// Sensitivity map of the recipe's view (delay_model.mode) over the image region, on a grid of
     /// at most kCoverageStepMm (recon::coverageMap; computed on first use and cached per capture,
     /// view and region). nullptr without an image or when the view cannot be mapped.
+    /// Waits for the map when it is being computed in the background.
     const recon::CoverageMap* coverage() const;
+    /// The same without waiting: nullptr until the map is ready; the first call starts it on a
+    /// background thread (about a second for a wedge view of the weld demo, bench_views
+    /// BM_Coverage) and coverageReady() says when it is there.
+    const recon::CoverageMap* coverageIfReady() const;
     static constexpr double kCoverageStepMm = 0.25;
     /// Coverage in dB at a point (bilinear), nullopt outside the map.
     std::optional<double> coverageDbAt(double x_mm, double z_mm) const;
@@ -370,6 +377,7 @@ signals:
     void curveChanged();          ///< distance–amplitude curve set, changed or cleared
     void weldChanged();           ///< weld geometry set, changed or removed
     void stripChanged();          ///< chosen views, or a strip image, changed
+    void coverageReady();         ///< a coverage map computed in the background is ready
     void topViewChanged();
     void busyChanged(bool busy);
     void progressChanged(double fraction, QString what);
@@ -436,8 +444,18 @@ private:
     FramePtr envelope_;
     std::vector<float> db_;
     std::vector<float> tgc_amp_;
-    mutable std::optional<recon::CoverageMap> coverage_;  ///< cache for coverage()
+    mutable std::optional<recon::CoverageMap> coverage_;  ///< cache for coverage() (nullopt: the view cannot be mapped)
     mutable std::string coverage_key_;                    ///< capture, view and region it was made for
+    /// Key of the map to make now ("" without an image), with its view and grid.
+    std::string coverageKey(std::string* mode, recon::Grid* grid) const;
+    /// Starts the map of `key` in the background unless it is already running.
+    void startCoverage(const std::string& key, const std::string& mode, const recon::Grid& g) const;
+    /// Takes the finished background map into coverage_ when it is the one asked for.
+    void takeCoverage() const;
+    mutable std::future<std::optional<recon::CoverageMap>> coverage_job_;
+    mutable std::string coverage_job_key_;
+    mutable std::vector<std::future<std::optional<recon::CoverageMap>>> coverage_stale_;  ///< superseded, still running
+    QTimer* coverage_poll_ = nullptr;
     mutable std::optional<recon::SizingSetup> sizing_setup_;  ///< cache; reset when tgc_amp_ changes
     QImage image_;
     QImage top_image_;

@@ -42,6 +42,7 @@ ImageView::ImageView(CaseController* controller, QWidget* parent) : QWidget(pare
     connect(ctl_, &CaseController::selectionChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::findingsChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::weldChanged, this, qOverload<>(&QWidget::update));
+    connect(ctl_, &CaseController::coverageReady, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::caseChanged, this, qOverload<>(&QWidget::update));
     connect(ctl_, &CaseController::captureChanged, this, [this] {
         last_extent_ = QRectF();
@@ -173,7 +174,7 @@ Scene ImageView::scene() const {
     if (ctl_->hasCapture() && (ctl_->largeView() != "L-L" || ctl_->header().medium.wedge || !ctl_->stripViews().empty()))
         s.view_label = tr("view %1").arg(QString::fromStdString(ctl_->largeView()));
     if (show_coverage_)
-        if (const recon::CoverageMap* c = ctl_->coverage()) {
+        if (const recon::CoverageMap* c = ctl_->coverageIfReady()) {
             std::vector<double> xs, zs;
             for (double v : c->x_m) xs.push_back(v * 1e3);
             for (double v : c->z_m) zs.push_back(v * 1e3);
