@@ -29,7 +29,7 @@ echo "sanitize-tests: built in $((built - start)) s"
 # Suppressions: none for our code; tests/fuzz/lsan.supp for the HDF5 library's own allocations.
 export ASAN_OPTIONS=${ASAN_OPTIONS:-detect_leaks=1:abort_on_error=0:halt_on_error=1:strict_string_checks=1:detect_stack_use_after_return=1}
 export UBSAN_OPTIONS=${UBSAN_OPTIONS:-print_stacktrace=1:halt_on_error=1}
-export LSAN_OPTIONS=${LSAN_OPTIONS:-suppressions=$PWD/tests/fuzz/lsan.supp}  # the HDF5 library's own lists
+export LSAN_OPTIONS=${LSAN_OPTIONS:-suppressions=$PWD/tests/fuzz/lsan.supp:print_suppressions=0}  # the HDF5 library's own lists
 export QT_QPA_PLATFORM=offscreen
 rc=0
 # The bounded-memory test caps the address space, which AddressSanitizer's shadow memory (terabytes
