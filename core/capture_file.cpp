@@ -28,11 +28,6 @@ std::mutex& h5Mutex() { return hdf5Mutex(); }  // shared with image files
 // A string from the file, safe to put into a one-line message: control and non-ASCII bytes
 // become '?', and it is cut to 60 characters.
 // "12.5 MiB" (one decimal) for messages about sizes.
-std::string mib(double bytes) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.1f MiB", bytes / (1024.0 * 1024.0));
-    return buf;
-}
 
 std::string printable(const std::string& s) {
     std::string out;
@@ -263,32 +258,10 @@ void parseHeader(hid_t file, HeaderParse& out) {
         {
             // Traces that were never written read back as fill values, slowly for a large claim
             // (a damaged file may claim 2^20 frames of which nothing is stored): refuse at once.
-            double declared = double(sz);
-            for (hsize_t v : *d) declared *= double(v);
-            Hid dcpl(H5Dget_create_plist(ds.get()));
-            const H5D_layout_t layout = dcpl ? H5Pget_layout(dcpl.get()) : H5D_LAYOUT_ERROR;
             // Sizes beyond CaptureLimits are reported by checkHeader with their own message.
             const bool within_limits = (*d)[0] <= CaptureLimits::max_frames && (*d)[3] <= CaptureLimits::max_samples;
-            if (!within_limits) {
-            } else if (declared > 0 && layout == H5D_CONTIGUOUS) {
-                const double stored = double(H5Dget_storage_size(ds.get()));
-                if (stored < declared)
-                    add("/data/rf", "declares " + mib(declared) + " of traces but only " + mib(stored) +
-                                        " are stored; the rest was never written (damaged or truncated file)");
-            } else if (declared > 0 && layout == H5D_CHUNKED) {
-                hsize_t chunk[4] = {0, 0, 0, 0};
-                hsize_t nchunks = 0;
-                Hid space(H5Dget_space(ds.get()));  // this HDF5 version refuses H5S_ALL here
-                if (H5Pget_chunk(dcpl.get(), 4, chunk) == 4 && chunk[0] && chunk[1] && chunk[2] && chunk[3] && space &&
-                    H5Dget_num_chunks(ds.get(), space.get(), &nchunks) >= 0) {
-                    double expected = 1;
-                    for (int k = 0; k < 4; ++k) expected *= std::ceil(double((*d)[k]) / double(chunk[k]));
-                    if (double(nchunks) < expected)
-                        add("/data/rf", "declares " + mib(declared) + " of traces in " + std::to_string(static_cast<long long>(expected)) +
-                                            " chunks but only " + std::to_string(nchunks) +
-                                            " chunks are stored; the rest was never written (damaged or truncated file)");
-                }
-            }
+            if (within_limits)
+                if (auto problem = unwrittenData(ds.get(), *d, sz, "of traces")) add("/data/rf", *problem);
         }
         if (tx_ok && (*d)[1] != h.transmit.count())
             add("/data/rf", "has " + std::to_string((*d)[1]) + " transmit events; /transmit lists " + std::to_string(h.transmit.count()));

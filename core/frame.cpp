@@ -202,7 +202,15 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
     if (!x) throw InputError(path, "/image/x_m", err);
     auto z = readDoubles(f.get(), "/image/z_m", 1, 1 << 20, dims, err);
     if (!z) throw InputError(path, "/image/z_m", err);
-    // Shape checked against the axes and a size bound before anything is allocated.
+    // Pixel centres: finite and strictly increasing (x to the right, z downwards).
+    for (auto [axis, v] : {std::pair{"/image/x_m", &*x}, std::pair{"/image/z_m", &*z}}) {
+        for (size_t i = 0; i < v->size(); ++i) {
+            if (!std::isfinite((*v)[i])) throw InputError(path, axis, "non-finite pixel centre");
+            if (i > 0 && !((*v)[i] > (*v)[i - 1])) throw InputError(path, axis, "pixel centres must be strictly increasing");
+        }
+    }
+    // Shape checked against the axes, a size bound and the bytes actually stored before anything
+    // is allocated.
     constexpr size_t kMaxEnvelope = size_t(1) << 28;  // 1 GiB of float32
     if (!exists(f.get(), "/image/envelope")) throw InputError(path, "/image/envelope", "is missing");
     {
@@ -214,18 +222,20 @@ ImageStack readImage(const std::string& path, bool with_envelope) {
             throw InputError(path, "/image/envelope", "shape does not match [N_frames, N_z, N_x] = [*, " +
                                                           std::to_string(z->size()) + ", " + std::to_string(x->size()) + "]");
         dims = *d;
+        Hid type(H5Dget_type(ds.get()));
+        const size_t elem = type ? H5Tget_size(type.get()) : 0;
+        double values = 1;
+        for (hsize_t v : dims) values *= double(v);
+        if (values > double(kMaxEnvelope))
+            throw InputError(path, "/image/envelope", "declares " + std::to_string(static_cast<long long>(values)) +
+                                                          " values, too large (the limit is " + std::to_string(kMaxEnvelope) + ")");
+        if (elem > 0)
+            if (auto problem = unwrittenData(ds.get(), dims, elem, "of image values")) throw InputError(path, "/image/envelope", *problem);
     }
     if (with_envelope) {
         auto e = readFloats(f.get(), "/image/envelope", 3, kMaxEnvelope, dims, err);
         if (!e) throw InputError(path, "/image/envelope", err);
         img.envelope = std::move(*e);
-    }
-    // Pixel centres: finite and strictly increasing (x to the right, z downwards).
-    for (auto [axis, v] : {std::pair{"/image/x_m", &*x}, std::pair{"/image/z_m", &*z}}) {
-        for (size_t i = 0; i < v->size(); ++i) {
-            if (!std::isfinite((*v)[i])) throw InputError(path, axis, "non-finite pixel centre");
-            if (i > 0 && !((*v)[i] > (*v)[i - 1])) throw InputError(path, axis, "pixel centres must be strictly increasing");
-        }
     }
     if (dims[0] == 0) throw InputError(path, "/image/envelope", "holds no frames");
     const size_t e_frames = dims[0];

@@ -8,7 +8,8 @@
 #   scripts/fuzz.sh all 30          # the CI run
 #   scripts/fuzz.sh capture 3600    # one target for an hour
 # Environment: UMBRA_FUZZ_JOBS (parallel fuzzing processes per target, default 1),
-# UMBRA_FUZZ_BUILD (build folder, default build-fuzz).
+# UMBRA_FUZZ_BUILD (build folder, default build-fuzz), UMBRA_FUZZ_SEED (libFuzzer's random seed;
+# CI fixes it so that a CI run repeats the same mutations; unset, every run explores anew).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 if [ $# -ne 2 ]; then
@@ -46,12 +47,24 @@ cmake --build "$build" -j2 --target $(for t in $targets; do printf 'fuzz_%s ' "$
 hdf5_targets=" capture image "
 classify() {  # $1 target binary, $2 input: prints "libhdf5", "umbra" or "none" (does not fail again)
   local out rc=0
-  out=$(LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" timeout 60 "$1" -timeout=10 "$2" 2>&1) || rc=$?
+  out=$(LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" ASAN_OPTIONS=allocator_may_return_null=1 \
+        timeout 60 "$1" -timeout=10 -rss_limit_mb=2048 "$2" 2>&1) || rc=$?
   if [ $rc -eq 0 ]; then echo none; return; fi
-  local first
+  # The first stack frame that is either in libhdf5 or in the fuzz binary (Umbra's code is linked
+  # into it statically) decides. Frames of the sanitizer runtime, libFuzzer, the C and C++
+  # runtimes and the compression libraries HDF5 calls (zlib, szip) are passed over: a timeout
+  # can interrupt HDF5 inside inflate(), an uncaught exception from Umbra's code passes through
+  # std::terminate before reaching an Umbra frame.
+  local bin first
+  bin=$(basename "$1")
   first=$(printf '%s\n' "$out" | grep -E '^ +#[0-9]+ ' |
-          grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libc\.so|libFuzzer|fuzzer::| in (malloc|calloc|realloc|memalign|posix_memalign|operator new)' | head -1 || true)
-  case "$first" in *libhdf5*) echo libhdf5 ;; *) echo umbra ;; esac
+          grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libFuzzer|fuzzer::| in (malloc|calloc|realloc|memalign|posix_memalign|operator new)' |
+          grep -E "libhdf5|/$bin\+0x|/(core|reconstruction|tests)/" | head -1 || true)
+  case "$first" in
+    *libhdf5*) echo libhdf5 ;;
+    "") if printf '%s\n' "$out" | grep -q -E '^ +#[0-9]+ .*libhdf5'; then echo libhdf5; else echo umbra; fi ;;
+    *) echo umbra ;;
+  esac
 }
 status=0
 for t in $targets; do
@@ -67,7 +80,7 @@ for t in $targets; do
     LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" \
     "$build/fuzz/fuzz_$t" "$corpus" "tests/fuzz/corpus/$t" -max_total_time="$seconds" -timeout=10 \
     -rss_limit_mb=2048 -max_len=65536 $([ "$jobs" -gt 1 ] && echo "-jobs=$jobs -workers=$jobs") -print_final_stats=1 \
-    -artifact_prefix="$artifacts/" "${mode[@]}" 2>"$build/fuzz_$t.log" || rc=$?
+    -artifact_prefix="$artifacts/" $([ -n "${UMBRA_FUZZ_SEED:-}" ] && echo "-seed=$UMBRA_FUZZ_SEED") "${mode[@]}" 2>"$build/fuzz_$t.log" || rc=$?
   grep -E "stat::number_of_executed_units|stat::new_units_added" "$build/fuzz_$t.log" | tail -2 || true
   if [ ${#mode[@]} -eq 0 ] && [ $rc -ne 0 ]; then
     echo "fuzz_$t: FOUND a problem; see $build/fuzz_$t.log and $artifacts/" >&2
@@ -81,7 +94,9 @@ for t in $targets; do
       case "$(classify "$build/fuzz/fuzz_$t" "$a")" in
         libhdf5*) lib=$((lib + 1)) ;;
         none) gone=$((gone + 1)) ;;
-        *) ours=$((ours + 1)); echo "fuzz_$t: finding in Umbra's code: $a" >&2 ;;
+        *) ours=$((ours + 1)); echo "fuzz_$t: finding in Umbra's code: $a" >&2
+           LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" timeout 60 "$build/fuzz/fuzz_$t" -timeout=10 "$a" 2>&1 |
+             grep -E 'ERROR|SUMMARY|^ +#[0-9]+ ' | head -16 >&2 || true ;;
       esac
     done
     echo "fuzz_$t: inputs failing inside libhdf5: $lib (covered by the child-process check); in Umbra's code: $ours;" \

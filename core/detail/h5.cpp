@@ -1,6 +1,9 @@
 // SPDX-License-Identifier: MIT
 #include "core/detail/h5.h"
 
+#include <cmath>
+#include <cstdio>
+
 #include <mutex>
 #include <stdexcept>
 
@@ -258,6 +261,45 @@ Hid creationPlist(hid_t cls) {
     Hid p = checkId(H5Pcreate(cls), "creation property list");
     check(H5Pset_obj_track_times(p.get(), false), "creation property list");
     return p;
+}
+
+std::string mibText(double bytes) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.1f MiB", bytes / (1024.0 * 1024.0));
+    return buf;
+}
+
+std::optional<std::string> unwrittenData(hid_t ds, const std::vector<hsize_t>& dims, size_t element_bytes,
+                                         const std::string& what) {
+    double declared = double(element_bytes);
+    for (hsize_t v : dims) declared *= double(v);
+    if (!(declared > 0)) return std::nullopt;
+    Hid dcpl(H5Dget_create_plist(ds));
+    const H5D_layout_t layout = dcpl ? H5Pget_layout(dcpl.get()) : H5D_LAYOUT_ERROR;
+    if (layout == H5D_CONTIGUOUS) {
+        const double stored = double(H5Dget_storage_size(ds));
+        if (stored < declared)
+            return "declares " + mibText(declared) + " " + what + " but only " + mibText(stored) +
+                   " are stored; the rest was never written (damaged or truncated file)";
+    } else if (layout == H5D_CHUNKED) {
+        const int rank = int(dims.size());
+        std::vector<hsize_t> chunk(dims.size(), 0);
+        hsize_t nchunks = 0;
+        Hid space(H5Dget_space(ds));  // this HDF5 version refuses H5S_ALL here
+        if (rank > 0 && H5Pget_chunk(dcpl.get(), rank, chunk.data()) == rank && space &&
+            H5Dget_num_chunks(ds, space.get(), &nchunks) >= 0) {
+            double expected = 1;
+            for (int k = 0; k < rank; ++k) {
+                if (chunk[k] == 0) return std::nullopt;
+                expected *= std::ceil(double(dims[k]) / double(chunk[k]));
+            }
+            if (double(nchunks) < expected)
+                return "declares " + mibText(declared) + " " + what + " in " + std::to_string(static_cast<long long>(expected)) +
+                       " chunks but only " + std::to_string(nchunks) +
+                       " chunks are stored; the rest was never written (damaged or truncated file)";
+        }
+    }
+    return std::nullopt;
 }
 
 }  // namespace umbra::core::detail

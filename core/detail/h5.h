@@ -55,6 +55,16 @@ std::optional<std::vector<double>> readDoubleArrayAttr(hid_t obj, const std::str
 /// Dimensions of a dataset, or nullopt with err.
 std::optional<std::vector<hsize_t>> datasetDims(hid_t ds, std::string& err);
 
+/// Data that was never written reads back as fill values, slowly for a large claim (a damaged
+/// file may declare 2^28 values of which nothing is stored). Returns a problem text naming
+/// what is declared and what is stored when a contiguous dataset stores fewer bytes than its
+/// shape needs or a chunked one stores fewer chunks; nullopt when the data is all there (or the
+/// layout is one this check does not know). `what` names the data ("of traces").
+std::optional<std::string> unwrittenData(hid_t ds, const std::vector<hsize_t>& dims, size_t element_bytes,
+                                         const std::string& what);
+/// A byte count as text in MiB ("12.5 MiB").
+std::string mibText(double bytes);
+
 /// Reads a whole numeric dataset of the given rank into doubles / int32 / float, after
 /// checking its rank, its type class and that it holds at most `max_elems` values.
 std::optional<std::vector<double>> readDoubles(hid_t loc, const std::string& name, int rank, size_t max_elems,
