@@ -307,7 +307,7 @@ DistanceAmplitudeCurve readLegacyReference(const Reader& r, const json& j, const
     DacPoint d;
     d.amplitude = readAmplitude(r, j, path);
     d.label = c.label;
-    d.capture_sha256 = r.text(j, path, "capture_sha256");
+    d.capture_sha256 = readSha(r, j, path, "capture_sha256");
     d.frame = r.count(j, path, "frame");
     d.x_m = r.number(j, path, "x_mm", 0.0) * 1e-3;
     d.depth_m = r.number(j, path, "z_mm", 0.0) * 1e-3;

@@ -503,6 +503,16 @@ TEST(case_file_test, old_single_amplitude_reference_opens_as_a_one_point_curve) 
     EXPECT_NE(again.find("\"distance_amplitude_curve\""), std::string::npos);
     EXPECT_NE(again.find("\"after TCG\""), std::string::npos);
     EXPECT_EQ(loadCase(file.string()).curve->basis, AmplitudeBasis::AfterTcg);
+    // Its capture hash is checked as the curve's are (found by fuzzing: a bad hash loaded, then
+    // the saved curve did not load back).
+    writeFile(file, R"({"format": "umbracase", "version": 1,
+  "amplitude_reference": {"label": "x", "amplitude": 2.0, "capture_sha256": "umbracase", "frame": 0, "x_mm": 1, "z_mm": 5}})");
+    try {
+        loadCase(file.string());
+        ADD_FAILURE() << "a bad capture hash was accepted";
+    } catch (const InputError& e) {
+        EXPECT_EQ(e.problems().at(0).where, "amplitude_reference.capture_sha256");
+    }
 }
 
 // A damaged or hostile case file must be refused before it takes memory: 90 MB holding 30 M

@@ -2,6 +2,7 @@
 // libFuzzer target: the case loader (JSON text -> checked case document), then a round trip:
 // a case that loads must save to text that loads back to an equal document.
 #include <cstdint>
+#include <cstdio>
 #include <cstdlib>
 #include <string>
 
@@ -19,7 +20,8 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
     const std::string again = umbra::core::caseToJson(doc, "/nonexistent-case-folder");
     try {
         if (!(umbra::core::caseFromJson(again, "fuzz.umbracase", "/nonexistent-case-folder") == doc)) std::abort();
-    } catch (const umbra::core::InputError&) {
+    } catch (const umbra::core::InputError& e) {
+        std::fprintf(stderr, "fuzz_case: the saved case does not load back: %s\n", e.what());
         std::abort();  // what we wrote we must read back
     }
     return 0;
