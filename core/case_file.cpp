@@ -344,11 +344,16 @@ WeldGeometry readWeld(const Reader& r, const json& j, const std::string& path) {
     return w;
 }
 
+// A capture's path as held in memory: made absolute against the case's folder and written in
+// one normal form ("a/./b/" and "a/b" are the same file), so that a case saved and loaded again
+// holds the same paths.
 std::string resolvedPath(const std::string& stored, const std::string& base_dir) {
-    if (stored.empty() || base_dir.empty()) return stored;
-    const fs::path p(stored);
-    if (p.is_absolute()) return stored;
-    return (fs::path(base_dir) / p).lexically_normal().string();
+    if (stored.empty()) return stored;
+    fs::path p(stored);
+    if (!p.is_absolute() && !base_dir.empty()) p = fs::path(base_dir) / p;
+    p = p.lexically_normal();
+    if (!p.has_filename() && p.has_relative_path()) p = p.parent_path();  // "/a/b/" -> "/a/b"
+    return p.string();
 }
 
 std::string folderOf(const std::string& path) {

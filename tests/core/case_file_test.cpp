@@ -206,6 +206,24 @@ TEST(case_file_test, capture_paths_are_stored_relative_to_the_case) {
     EXPECT_NE(caseToJson(d, (t.path() / "cases").string()).find("\"../data/weld-synthetic.h5\""), std::string::npos);
 }
 
+// One file, one path: "/data/./w.h5", "/data/w.h5/" and "/data/x/../w.h5" are held as "/data/w.h5",
+// so that a case saved and loaded again is the same case (a fuzzing find: an absolute path with a
+// trailing "/." was kept as written and came back without it). POSIX path resolution (from memory).
+TEST(case_file_test, capture_paths_are_held_in_one_normal_form) {
+    const std::string sha(64, 'a');
+    for (const std::string written : {"/data/./w.h5", "/data/w.h5/", "/data/x/../w.h5", "/data//w.h5"}) {
+        const std::string text = R"({"format": "umbracase", "version": 1, "captures": [{"path": ")" + written +
+                                 R"(", "sha256": ")" + sha + R"("}]})";
+        const CaseDocument d = caseFromJson(text, "n.umbracase", "/cases");
+        ASSERT_EQ(d.captures.size(), 1u);
+        EXPECT_EQ(d.captures[0].path, "/data/w.h5") << written;
+        EXPECT_EQ(caseFromJson(caseToJson(d, "/cases"), "n.umbracase", "/cases"), d) << written;
+    }
+    // Relative paths are resolved against the case's folder into the same form.
+    const std::string rel = R"({"format": "umbracase", "version": 1, "captures": [{"path": "../data/./w.h5", "sha256": ")" + sha + R"("}]})";
+    EXPECT_EQ(caseFromJson(rel, "n.umbracase", "/cases").captures[0].path, "/data/w.h5");
+}
+
 TEST(case_file_test, moving_the_whole_folder_keeps_captures_found) {
     TempDir t;
     const fs::path a = t.path() / "a", b = t.path() / "b";
