@@ -6,10 +6,12 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <optional>
 #include <sstream>
 
 #include "core/error.h"
 #include "reconstruction/analytic_stage.h"
+#include "reconstruction/ray_path.h"
 
 namespace umbra::recon {
 namespace {
@@ -330,6 +332,113 @@ core::MeasuredValue fixedDelay(const EchoTime& echo, double d, double tol, doubl
     t0.budget.add("reflector depth", "tolerance ±" + fmt(tol * 1e3, 3) + " mm, rectangular, /√3", 2 * (tol / std::sqrt(3.0)) / c);
     t0.budget.add("speed of sound", "standard uncertainty " + fmt(u_c, 1) + " m/s", 2 * d * u_c / (c * c));
     return t0;
+}
+
+DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, double xs, double zs, double radius, double tol, Wave wave,
+                                         size_t frame, double search_s) {
+    if (!std::isfinite(xs) || !(zs > 0) || !std::isfinite(zs))
+        throw core::SettingError("reflector position: x must be a number and the depth positive (mm)");
+    if (!(radius >= 0) || !std::isfinite(radius)) throw core::SettingError("hole diameter must be 0 (a point or tip) or positive");
+    if (!(tol >= 0) || !std::isfinite(tol)) throw core::SettingError("position tolerance must be at least 0");
+    if (!(search_s > 0) || !std::isfinite(search_s)) throw core::SettingError("delay search range must be positive");
+    PulseEcho pe(capture);
+    const ViewGeometry g = ViewGeometry::fromHeader(pe.h);
+    const double c = g.speed(wave);
+    const char* wname = wave == Wave::L ? "longitudinal" : "shear";
+    if (!(c > 0))
+        throw core::SettingError(capture.path() + ": a " + std::string(wname) + "-wave delay needs the part's " +
+                                 (wave == Wave::L ? "speed of sound" : "shear speed (/medium@shear_speed_m_s)"));
+    if (radius > 0 && !(zs - radius > 0)) throw core::SettingError("the hole must lie below the surface (depth greater than its radius)");
+    // Model round trip of every pulse-echo trace; a trace no path serves is left out.
+    std::vector<double> model(pe.pairs.size(), std::numeric_limits<double>::quiet_NaN());
+    size_t reachable = 0;
+    for (size_t k = 0; k < pe.pairs.size(); ++k) {
+        const RayPath r = g.path(pe.h.array.element_position_m[size_t(pe.element[k])], {wave}, xs, zs);
+        if (!r.valid) continue;
+        model[k] = 2 * r.time_s - 2 * radius / c;
+        ++reachable;
+    }
+    const std::string what = "reflector at x = " + fmt(xs * 1e3, 2) + " mm, depth " + fmt(zs * 1e3, 2) + " mm";
+    if (reachable == 0) throw core::SettingError(capture.path() + ": no " + std::string(wname) + " path reaches the " + what);
+    const Envelopes E = envelopes(pe, frame);
+    // Stack the pulse-echo envelopes along the model's moveout: S(d) = Σ_k env_k(model_k + d).
+    // Only echoes of a reflector at the assumed place line up for one d; another reflector in
+    // the window has another moveout and stacks weakly, even when it is the stronger echo.
+    const long nd = long(std::ceil(search_s * E.fs_up));
+    std::vector<double> stack(size_t(2 * nd + 1), 0.0);
+    for (size_t k = 0; k < model.size(); ++k) {
+        if (!std::isfinite(model[k])) continue;
+        const auto& env = E.env[k];
+        for (long i = -nd; i <= nd; ++i) {
+            const double pos = (model[k] + double(i) / E.fs_up - E.start_s[k]) * E.fs_up;
+            const long j = long(std::floor(pos));
+            if (j < 0 || j + 1 >= long(env.size())) continue;
+            const double f = pos - double(j);
+            stack[size_t(i + nd)] += (1 - f) * env[size_t(j)] + f * env[size_t(j + 1)];
+        }
+    }
+    const long ib = long(std::max_element(stack.begin(), stack.end()) - stack.begin());
+    const double shift = double(ib - nd) / E.fs_up;
+    // Each element's own echo near the stacked delay (one period either side).
+    const double period = 1 / std::max(pe.h.array.centre_frequency_hz, 1.0);
+    // A second reflector close in range to the first, seen over the same small angular aperture,
+    // stacks almost as well at another delay: a delay and a range shift cannot be told apart from
+    // one reflector. Say so when another stack maximum (beyond two periods) is within 12 dB.
+    std::optional<double> rival;
+    {
+        const long guard = long(std::ceil(2 * period * E.fs_up));
+        long ir = -1;
+        for (long i = 1; i + 1 < long(stack.size()); ++i)
+            if (std::labs(i - ib) > guard && stack[size_t(i)] >= stack[size_t(i - 1)] && stack[size_t(i)] >= stack[size_t(i + 1)] &&
+                (ir < 0 || stack[size_t(i)] > stack[size_t(ir)]))
+                ir = i;
+        if (ir >= 0 && stack[size_t(ir)] >= stack[size_t(ib)] / 4) rival = double(ir - nd) / E.fs_up;
+    }
+    std::vector<Peak> peaks(model.size());
+    double strongest = 0;
+    for (size_t k = 0; k < model.size(); ++k) {
+        if (!std::isfinite(model[k])) continue;
+        peaks[k] = peakIn(E.env[k], E.start_s[k], E.fs_up, model[k] + shift - period, model[k] + shift + period, E.floor[k]);
+        if (peaks[k].found) strongest = std::max(strongest, peaks[k].amplitude);
+    }
+    if (!(strongest > 0))
+        throw core::InputError(capture.path(), "/data/rf", "no echo of the " + what + " (12 dB above the noise) within ±" +
+                                                               fmt(search_s * 1e6, 2) + " µs of its model time in any pulse-echo trace");
+    std::vector<double> residual;
+    for (size_t k = 0; k < model.size(); ++k)
+        if (std::isfinite(model[k]) && peaks[k].found && peaks[k].amplitude >= strongest / 2)  // within 6 dB of the strongest
+            residual.push_back(peaks[k].time_s - model[k]);
+    DelayCalibration out;
+    out.elements = residual.size();
+    out.amplitude = strongest;
+    const double med = median(residual);
+    out.spread_s = 1.4826 * mad(residual, med);
+    core::MeasuredValue d{"fixed delay", med, "s", {}, false};
+    d.budget.add("echo times", "spread over " + std::to_string(residual.size()) + " elements (standard error of a median)",
+                 1.2533 * out.spread_s / std::sqrt(double(residual.size())));
+    d.budget.add("peak picking", "one upsampled step, rectangular, /√12", pickingU(E.fs_up));
+    // |grad of 2 τ| = 2 / c along the last leg; x and z each ±a, rectangular.
+    d.budget.add("reflector position", "tolerance ±" + fmt(tol * 1e3, 3) + " mm in x and depth, rectangular, /√3", 2 * tol / (std::sqrt(3.0) * c));
+    out.delay = d;
+    if (residual.size() < 3) out.notes.push_back("Only " + std::to_string(residual.size()) + " element(s) saw the reflector within 6 dB of the strongest: the spread is not known.");
+    if (rival)
+        out.notes.push_back("Another echo lines up almost as well at a delay of " + fmt(*rival * 1e6, 3) +
+                            " µs (within 12 dB): make sure the reflector is isolated, or narrow the search (--search-us) around "
+                            "the delay expected.");
+    out.notes.push_back(std::string("The part's ") + wname + " speed (" + fmt(c, 0) + " m/s)" + (g.wedge ? " and the wedge's (" + fmt(g.wedge->speed_of_sound_m_s, 0) + " m/s)" : std::string()) +
+                        " are taken as exact: an error in them goes into the delay.");
+    return out;
+}
+
+std::vector<std::string> delayLines(const DelayCalibration& c, double xs, double zs, double radius, Wave wave) {
+    std::vector<std::string> out;
+    std::string ref = radius > 0 ? "Ø" + fmt(2 * radius * 1e3, 2) + " mm hole" : "point reflector";
+    out.push_back("Fixed delay (calibrated from a " + ref + " at x = " + fmt(xs * 1e3, 2) + " mm, depth " + fmt(zs * 1e3, 2) + " mm, " +
+                  (wave == Wave::L ? "L" : "T") + " path): " +
+                  core::formatWithUncertainty(c.delay.value * 1e6, c.delay.budget.expanded() * 1e6, "µs") + " (k = 2), " +
+                  std::to_string(c.elements) + " elements");
+    for (const auto& n : c.notes) out.push_back("  " + n);
+    return out;
 }
 
 const char* elementStatusName(ElementStatus s) {

@@ -8,6 +8,8 @@
 //     (c = 2 (z2 - z1) / (t2 - t1));
 //   - fixed delay (wedge or delay line, at normal incidence) from a reflector of known depth
 //     and speed: t0 = t - 2 d / c;
+//   - fixed delay from a reflector at a known place seen at an angle, through the wedge or on
+//     contact: the median over elements of (echo time - least-time model of the round trip);
 //   - weak or dead elements from the transmit and receive energies of the full matrix.
 // Echo times are envelope peaks of the pulse-echo traces (transmit i, receive i), found on the
 // band-limited upsampled analytic signal and refined by a parabola through the peak.
@@ -20,6 +22,7 @@
 
 #include "core/capture_file.h"
 #include "core/uncertainty.h"
+#include "reconstruction/view_mode.h"
 
 namespace umbra::recon {
 
@@ -64,6 +67,29 @@ SpeedCalibration speedFromHoles(const core::CaptureReader& capture, double z1_m,
 /// echo time t with speed c (standard uncertainty u_c): wedge or delay-line time at normal
 /// incidence plus any system delay. Value in seconds, budget with k = 2.
 core::MeasuredValue fixedDelay(const EchoTime& echo, double depth_m, double depth_tol_m, double c_m_s, double u_c_m_s);
+
+/// Fixed delay from a reflector at a known place (specimen frame, through the capture's wedge
+/// if it has one): for each element whose pulse-echo trace holds the reflector's echo, the
+/// echo time minus the model's round trip 2 τ - 2 r / c (τ the least-time path of `ray_path.h`
+/// to the reflector's centre along one leg of type `wave`, r the hole's radius, 0 for a point
+/// or tip); the delay is the median over elements within 6 dB of the strongest. Use it as
+/// `delay_model.fixed_delay_us`. The delay is first searched for within ±`search_s` by stacking
+/// the pulse-echo envelopes along the model's moveout (only the reflector at the assumed place
+/// lines up), then each element's echo is taken within one period of it.
+struct DelayCalibration {
+    core::MeasuredValue delay;  ///< s, budget with k = 2
+    size_t elements = 0;        ///< pulse-echo traces used
+    double spread_s = 0;        ///< robust standard deviation of the per-element residuals, s
+    double amplitude = 0;       ///< strongest echo, capture units
+    std::vector<std::string> notes;
+};
+/// Throws SettingError for bad arguments, a capture without pulse-echo traces, a wave type whose
+/// speed the capture lacks or a reflector no path reaches; InputError (naming the file) when no
+/// echo is found.
+DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, double x_s_m, double z_s_m, double radius_m,
+                                         double position_tol_m, Wave wave, size_t frame = 0, double search_s = 2e-6);
+/// Plain-text lines for the technique block / the CLI.
+std::vector<std::string> delayLines(const DelayCalibration& c, double x_s_m, double z_s_m, double radius_m, Wave wave);
 
 /// Element health from the energies of a full matrix (frame `frame`).
 enum class ElementStatus { Ok, Weak, Dead };

@@ -28,7 +28,11 @@ core::StageSpec delayModelSpec() {
                             10),
              modalRealParam("shear_speed_m_s", "Shear speed",
                             "Shear-wave speed in the part for T legs, m/s; 0 = the capture's medium shear speed.", "m/s", 0, 20000,
-                            "from capture", 10)}};
+                            "from capture", 10),
+             realParam("fixed_delay_us", "Fixed delay",
+                       "Delay present in every trace beyond the modelled paths (wedge or delay-line error, system delay), "
+                       "removed before imaging, µs; found by umbra-cli calibrate (--reflector-mm, or --thickness-mm with --speed).",
+                       "µs", -100, 100, 0, false, 0.001)}};
 }
 
 DelayModelParams delayModelParams(const core::Recipe& r) {
@@ -37,6 +41,7 @@ DelayModelParams delayModelParams(const core::Recipe& r) {
     p.model = r.text("delay_model.model");
     p.mode = r.text("delay_model.mode");
     p.shear_speed_m_s = r.number("delay_model.shear_speed_m_s");
+    p.fixed_delay_us = r.number("delay_model.fixed_delay_us");
     return p;
 }
 

@@ -25,6 +25,7 @@ struct DelayModelParams {
     std::string model = "homogeneous";  ///< only "homogeneous" for now
     std::string mode = "L-L";        ///< view (reconstruction/view_mode.h); default L-L
     double shear_speed_m_s = 0;      ///< m/s; default 0 = the capture's /medium shear speed
+    double fixed_delay_us = 0;       ///< µs present in every trace beyond the model, removed before delay-and-sum
 };
 
 /// Time (s) given to a pixel that no path of the view reaches (in the wedge, below the back
@@ -34,7 +35,8 @@ inline constexpr float kNoPathTime = 1.0f;
 /// Which path of a view an element's time belongs to.
 enum class DelayLeg { Transmit, Receive };
 
-/// Declaration of the "delay_model" stage (model, mode, speed_of_sound_m_s, shear_speed_m_s).
+/// Declaration of the "delay_model" stage (model, mode, speed_of_sound_m_s, shear_speed_m_s,
+/// fixed_delay_us).
 core::StageSpec delayModelSpec();
 /// The stage's values from a recipe.
 DelayModelParams delayModelParams(const core::Recipe& r);

@@ -126,6 +126,7 @@ struct Reconstructor::Impl {
     size_t ns = 0, nrx = 0, ntx = 0, stride = 0, block_tx = 1;
     size_t up = 1, ns_up = 0;  // upsampling factor of the analytic traces; samples per upsampled trace
     double fs = 0, fs_up = 0;  // recorded and upsampled sampling rates, Hz
+    double fixed_delay_s = 0;  // delay_model.fixed_delay_us
     bool reciprocity = false;
     bool cubic = false;
     std::vector<int32_t> rx_el;        // receive channel -> element
@@ -179,6 +180,9 @@ struct Reconstructor::Impl {
                            }
                        }).share();
         das = dasParams(recipe);
+        fixed_delay_s = delayModelParams(recipe).fixed_delay_us * 1e-6;
+        if (das.method == "wavenumber" && fixed_delay_s != 0)
+            throw core::SettingError("delay_model.fixed_delay_us: the wavenumber method does not take a fixed delay; use das.method = delay_and_sum");
         if (das.method == "wavenumber") checkWavenumberCapture(h);
         grid = resolveGrid(h, recipe);
         if (das.method == "wavenumber" && !usesHomogeneousModel(h, recipe))
@@ -366,7 +370,8 @@ struct Reconstructor::Impl {
         if (h.transmit.kind != core::TransmitKind::SingleElement && W.txd.size() < nb * tile_max) W.txd.resize(nb * tile_max);
         for (size_t t = b0; t < b1; ++t) {
             const size_t l = t - b0;
-            W.tx_off[l] = float(double(detail::kTracePad) - h.receive.start_time_s[t] * fs_up);
+            // A fixed delay d in every trace: model time τ is found at sample (τ + d - start) fs.
+            W.tx_off[l] = float(double(detail::kTracePad) - (h.receive.start_time_s[t] - fixed_delay_s) * fs_up);
             W.tx_scale[l] = tx_weight[t];
             W.tx_el[l] = -1;
             switch (h.transmit.kind) {

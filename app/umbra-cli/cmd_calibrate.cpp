@@ -40,11 +40,18 @@ int cmdCalibrate(const Argv& argv) {
         {"--holes-mm", "Z1,Z2", "depths of two side-drilled holes of equal diameter: speed from their echoes"},
         {"--depth-tol-mm", "A", "tolerance ±A of each hole depth, mm (rectangular; default 0.05)"},
         {"--speed", "M/S", "known speed of sound: with --thickness-mm, gives the fixed (wedge / delay-line) delay instead"},
+        {"--reflector-mm", "X,Z", "a reflector at a known place (specimen frame, through the wedge): the fixed delay from its echoes"},
+        {"--hole-diameter-mm", "D", "with --reflector-mm: the reflector is a side-drilled hole of diameter D (default 0: a point or tip)"},
+        {"--wave", "L|T", "with --reflector-mm: wave type of the path in the part (default: T through a wedge, L on contact)"},
+        {"--position-tol-mm", "A", "with --reflector-mm: tolerance ±A of its x and depth, mm (rectangular; default 0.05)"},
+        {"--search-us", "W", "with --reflector-mm: search the delay within ±W µs (default 2)"},
         {"--elements", "", "report weak and dead elements from the full matrix's energies"},
         {"--frame", "N", "frame to use, 0-based (default 0)"},
         {"--json", "", "print one JSON object"},
     };
-    const char* usage = "umbra-cli calibrate CAPTURE.h5 (--thickness-mm D | --holes-mm Z1,Z2) [--speed M/S] [--elements] [--json]";
+    const char* usage =
+        "umbra-cli calibrate CAPTURE.h5 (--thickness-mm D [--speed M/S] | --holes-mm Z1,Z2 | --reflector-mm X,Z [--hole-diameter-mm D]) "
+        "[--elements] [--json]";
     Args a(argv, specs, 0, 1);
     if (a.help()) {
         std::fputs(helpText(usage,
@@ -52,7 +59,9 @@ int cmdCalibrate(const Argv& argv) {
                             "back-wall echo; when the record holds the back wall's repeat, c = 2 d / (t2 - t1) (free of any fixed\n"
                             "delay) and the fixed delay t0 = 2 t1 - t2. --holes-mm: c = 2 (z2 - z1) / (t2 - t1) from two equal\n"
                             "side-drilled holes. --speed with --thickness-mm: the fixed delay t0 = t - 2 d / c of the back wall\n"
-                            "(a wedge or delay line at normal incidence). --elements: weak and dead elements (transmit and\n"
+                            "(a wedge or delay line at normal incidence). --reflector-mm: the fixed delay from a hole or point at a\n"
+                            "known place seen at an angle (through the wedge): echo times minus the least-time round trip, median\n"
+                            "over the elements; use it as --set delay_model.fixed_delay_us=VALUE. --elements: weak and dead elements (transmit and\n"
                             "receive energies against the median element; exclude them with --set das.excluded_elements=LIST in\n"
                             "reconstruct). Values carry expanded uncertainties (k = 2, JCGM 100:2008), rounded to them.",
                             specs)
@@ -62,9 +71,12 @@ int cmdCalibrate(const Argv& argv) {
     }
     if (a.positional().size() != 1) throw UsageError("missing argument CAPTURE.h5 (see --help)");
     const bool want_elements = a.has("--elements");
-    if (!a.has("--thickness-mm") && !a.has("--holes-mm") && !want_elements)
-        throw UsageError("say what to calibrate: --thickness-mm D, --holes-mm Z1,Z2 or --elements (see --help)");
-    if (a.has("--thickness-mm") && a.has("--holes-mm")) throw UsageError("give --thickness-mm or --holes-mm, not both");
+    if (!a.has("--thickness-mm") && !a.has("--holes-mm") && !a.has("--reflector-mm") && !want_elements)
+        throw UsageError("say what to calibrate: --thickness-mm D, --holes-mm Z1,Z2, --reflector-mm X,Z or --elements (see --help)");
+    if (int(a.has("--thickness-mm")) + int(a.has("--holes-mm")) + int(a.has("--reflector-mm")) > 1)
+        throw UsageError("give one of --thickness-mm, --holes-mm and --reflector-mm");
+    for (const char* opt : {"--hole-diameter-mm", "--wave", "--position-tol-mm", "--search-us"})
+        if (a.has(opt) && !a.has("--reflector-mm")) throw UsageError(std::string(opt) + " goes with --reflector-mm");
     if (a.has("--speed") && !a.has("--thickness-mm")) throw UsageError("--speed needs --thickness-mm (the reflector of known depth)");
     const std::string path = a.positional()[0];
     size_t frame = 0;
@@ -120,6 +132,38 @@ int cmdCalibrate(const Argv& argv) {
         const double z1 = parseFiniteNumber("--holes-mm", h->substr(0, comma)) * 1e-3;
         const double z2 = parseFiniteNumber("--holes-mm", h->substr(comma + 1)) * 1e-3;
         report(recon::speedFromHoles(cap, z1, z2, tol("--depth-tol-mm"), frame));
+    }
+    if (auto rm = a.value("--reflector-mm")) {
+        const auto comma = rm->find(',');
+        if (comma == std::string::npos) throw UsageError("--reflector-mm needs X,Z in mm (specimen frame), got '" + *rm + "'");
+        const double x = parseFiniteNumber("--reflector-mm", rm->substr(0, comma)) * 1e-3;
+        const double z = parseFiniteNumber("--reflector-mm", rm->substr(comma + 1)) * 1e-3;
+        if (!(z > 0)) throw UsageError("--reflector-mm: the depth Z must be positive");
+        double dia = 0;
+        if (auto d = a.value("--hole-diameter-mm")) dia = parseFiniteNumber("--hole-diameter-mm", *d) * 1e-3;
+        if (dia < 0) throw UsageError("--hole-diameter-mm must not be negative");
+        recon::Wave wave = cap.header().medium.wedge ? recon::Wave::T : recon::Wave::L;
+        if (auto w = a.value("--wave")) {
+            if (*w == "L") wave = recon::Wave::L;
+            else if (*w == "T") wave = recon::Wave::T;
+            else throw UsageError("--wave must be L or T, got '" + *w + "'");
+        }
+        double search_us = 2;
+        if (auto w = a.value("--search-us")) search_us = parseFiniteNumber("--search-us", *w);
+        if (!(search_us > 0) || search_us > 100) throw UsageError("--search-us must be above 0 and at most 100 µs");
+        const auto c = recon::fixedDelayFromReflector(cap, x, z, dia / 2, tol("--position-tol-mm"), wave, frame, search_us * 1e-6);
+        j["method"] = "fixed delay from a reflector at a known place";
+        j["reflector_mm"] = {x * 1e3, z * 1e3};
+        j["hole_diameter_mm"] = dia * 1e3;
+        j["wave"] = wave == recon::Wave::L ? "L" : "T";
+        j["fixed_delay_us"] = measuredJson(c.delay, 1e6, "us");
+        j["elements_used"] = c.elements;
+        j["notes"] = c.notes;
+        for (const auto& l : recon::delayLines(c, x, z, dia / 2, wave)) lines.push_back(l);
+        const auto r = core::roundToUncertainty(c.delay.value * 1e6, c.delay.budget.expanded() * 1e6);
+        std::ostringstream v;
+        v << r.value;
+        lines.push_back("  to remove it: --set delay_model.fixed_delay_us=" + v.str());
     }
     if (want_elements) {
         const auto health = recon::elementHealth(cap, frame);

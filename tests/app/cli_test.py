@@ -321,7 +321,9 @@ def case_calibrate():
     rc, out, err = run("reconstruct", cap, "-o", img, "--set", "das.excluded_elements=17")
     check(rc == 2 and "das.excluded_elements" in err, f"element beyond the array: exit {rc}: {err.strip()}")
     for args in ([], ["--thickness-mm", "12", "--holes-mm", "5,10"], ["--holes-mm", "5"], ["--speed", "5900"],
-                 ["--thickness-mm", "-3"], ["--thickness-mm", "40"]):
+                 ["--thickness-mm", "-3"], ["--thickness-mm", "40"], ["--reflector-mm", "5"], ["--reflector-mm", "0,-2"],
+                 ["--reflector-mm", "0,5", "--wave", "S"], ["--hole-diameter-mm", "2"], ["--reflector-mm", "0,5", "--search-us", "0"],
+                 ["--reflector-mm", "0,5", "--thickness-mm", "12"]):
         rc, out, err = run("calibrate", cap, *args)
         check(rc == 2 and err.strip(), f"calibrate {args}: exit {rc}: {err.strip()}")
     rc, out, err = run("calibrate", os.path.join(d, "missing.h5"), "--thickness-mm", "12")

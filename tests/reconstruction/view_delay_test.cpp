@@ -9,6 +9,7 @@
 
 #include "core/capture_file.h"
 #include "core/error.h"
+#include "reconstruction/calibration.h"
 #include "reconstruction/delay_model.h"
 #include "reconstruction/pipeline.h"
 #include "reconstruction/ray_path.h"
@@ -257,7 +258,7 @@ namespace {
 // from the brute-force search (independent of the solver); Gaussian-modulated echoes as in
 // recon_test_util.h.
 std::string writeViewCapture(const std::string& name, const core::CaptureHeader& h0, const ViewGeometry& g, const ViewMode& mode,
-                             double xs, double zs) {
+                             double xs, double zs, double fixed_delay_s = 0) {
     core::CaptureHeader h = h0;
     const std::string path = testutil::tempPath(name);
     const size_t nel = h.array.elementCount();
@@ -288,7 +289,7 @@ std::string writeViewCapture(const std::string& name, const core::CaptureHeader&
     for (size_t t = 0; t < nel; ++t) {
         std::fill(block.begin(), block.end(), 0.0f);
         for (size_t r = 0; r < nel; ++r) {
-            const double tau = ttx[t] + trx[r];
+            const double tau = ttx[t] + trx[r] + fixed_delay_s;
             for (size_t k = 0; k < h.samples; ++k) {
                 const double dt = double(k) / fs - tau;
                 if (std::fabs(dt) < 5 * sig) block[r * h.samples + k] = float(std::exp(-dt * dt / (2 * sig * sig)) * std::cos(2 * M_PI * f0 * dt));
@@ -358,4 +359,56 @@ TEST(ViewImaging, ASkipViewWithTheGridBelowTheBackWallHasNoPath) {
     testutil::setRegion(r, 0, 10, 25, 30, 0.5);
     const Grid grid = resolveGrid(h, r);
     EXPECT_THROW(makeDelayModel(h, r, &grid), core::SettingError);
+}
+
+// A fixed delay in every trace (a wedge whose delay differs from its model, a system delay) is
+// found from a reflector at a known place seen through the wedge, and removed by
+// delay_model.fixed_delay_us. The echoes are placed by the brute-force search (not the solver)
+// 0.40 µs late; the calibration must give 0.40 µs within its expanded uncertainty and 5 ns.
+TEST(WedgeDelay, FoundFromAKnownReflectorAndRemovedBeforeImaging) {
+    const auto h = wedgeHeader(true);
+    const ViewGeometry g = ViewGeometry::fromHeader(h);
+    const double xs = 17e-3, zs = 12e-3, d = 0.40e-6;
+    const std::string late = writeViewCapture("delay_late.h5", h, g, parseViewMode("T-T"), xs, zs, d);
+    const std::string exact = writeViewCapture("delay_exact.h5", h, g, parseViewMode("T-T"), xs, zs, 0);
+    {
+        core::CaptureReader cap(late);
+        const DelayCalibration c = fixedDelayFromReflector(cap, xs, zs, 0, 0.05e-3, Wave::T);
+        EXPECT_NEAR(c.delay.value, d, 5e-9);
+        EXPECT_LE(std::fabs(c.delay.value - d), c.delay.budget.expanded());
+        EXPECT_GE(c.elements, 3u);
+        for (const auto& n : c.notes) EXPECT_EQ(n.find("Another echo"), std::string::npos) << n;  // one isolated point
+        // Position tolerance ±0.05 mm: 2 a / (√3 c_T) = 17.8 ns standard, the largest component.
+        EXPECT_NEAR(c.delay.budget.components.back().standard, 2 * 0.05e-3 / (std::sqrt(3.0) * kCt), 1e-12);
+        // The same reflector with a 1 mm hole radius assumed: the model's echo comes 2 r / c_T
+        // earlier, so the delay found grows by that much.
+        const DelayCalibration hole = fixedDelayFromReflector(cap, xs, zs, 1e-3, 0.05e-3, Wave::T);
+        EXPECT_NEAR(hole.delay.value - c.delay.value, 2 * 1e-3 / kCt, 2e-9);
+        // A longitudinal path to the same place gives a different model time: no echo in range.
+        EXPECT_THROW(fixedDelayFromReflector(cap, xs, zs, 0, 0.05e-3, Wave::L, 0, 0.2e-6), core::InputError);
+    }
+    {
+        core::CaptureReader cap(exact);
+        EXPECT_NEAR(fixedDelayFromReflector(cap, xs, zs, 0, 0.05e-3, Wave::T).delay.value, 0, 5e-9);
+    }
+    // Imaging the late capture: 0.40 µs of round trip is about 0.65 mm along the shear ray;
+    // with the delay removed the point lands within λ/10 again.
+    core::CaptureReader cap(late);
+    core::Recipe r = defaultRecipe();
+    r.set("delay_model.mode", "T-T");
+    r.set("das.interpolation", "cubic");
+    testutil::setRegion(r, xs * 1e3 - 2, xs * 1e3 + 2, zs * 1e3 - 2, zs * 1e3 + 2, 0.04);
+    const double lambda = kCt / h.array.centre_frequency_hz;
+    const auto off = testutil::framePeak(Reconstructor(cap, r, 2).run(0));
+    EXPECT_GT(std::hypot(off.x_m - xs, off.z_m - zs), lambda / 2);
+    r.setNumber("delay_model.fixed_delay_us", 0.40);
+    const auto on = testutil::framePeak(Reconstructor(cap, r, 2).run(0));
+    EXPECT_NEAR(on.x_m, xs, lambda / 10);
+    EXPECT_NEAR(on.z_m, zs, lambda / 10);
+    // The wavenumber method takes no fixed delay: a setting error, not a silent wrong image.
+    r.set("das.method", "wavenumber");
+    r.set("delay_model.mode", "L-L");
+    EXPECT_THROW(Reconstructor(cap, r, 2), core::SettingError);
+    std::filesystem::remove(late);
+    std::filesystem::remove(exact);
 }

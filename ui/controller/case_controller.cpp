@@ -1764,6 +1764,8 @@ QString CaseController::techniqueText() const {
                      .arg(QString::fromStdString(medium));
     }
     if (const QString v = viewText(); !v.isEmpty()) lines << tr("View: %1").arg(v);
+    if (const double d = recipe_.number("delay_model.fixed_delay_us"); d != 0)
+        lines << tr("Fixed delay removed from every trace: %1 µs (recipe, from calibration)").arg(d, 0, 'g', 6);
     if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
         lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
                      .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)
