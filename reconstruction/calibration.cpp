@@ -421,6 +421,9 @@ DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, dou
     d.budget.add("reflector position", "tolerance ±" + fmt(tol * 1e3, 3) + " mm in x and depth, rectangular, /√3", 2 * tol / (std::sqrt(3.0) * c));
     out.delay = d;
     if (residual.size() < 3) out.notes.push_back("Only " + std::to_string(residual.size()) + " element(s) saw the reflector within 6 dB of the strongest: the spread is not known.");
+    if (out.spread_s > period / 4)
+        out.notes.push_back("The echoes do not follow the moveout of a reflector at this place (spread " + fmt(out.spread_s * 1e9, 0) +
+                            " ns across elements, more than a quarter period): check the reflector's position and the wave type.");
     if (rival)
         out.notes.push_back("Another echo lines up almost as well at a delay of " + fmt(*rival * 1e6, 3) +
                             " µs (within 12 dB): make sure the reflector is isolated, or narrow the search (--search-us) around "

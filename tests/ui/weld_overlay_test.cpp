@@ -158,3 +158,57 @@ TEST(weld_overlay_test, calibration_goes_into_the_technique_block) {
     EXPECT_FALSE(why.isEmpty());
     EXPECT_EQ(ctl->undoStack()->count(), n);
 }
+
+// A fixed delay from a point at a known place (contact, L path) of a simulated capture: the
+// simulator puts no delay in the traces, so the delay found is 0 within its uncertainty (and
+// within 10 ns). Its lines join the speed's in the technique block; a new speed calibration
+// keeps them, and each is one undoable edit.
+TEST(weld_overlay_test, fixed_delay_from_a_known_reflector_joins_the_calibration_lines) {
+    const QString dir = ui::test::tempDir();
+    const QString cap = dir + "/point.h5";
+    const std::string scene = R"J({"title": "point in a plate (synthetic)", "scenario": "ui_delay", "seed": 5,
+      "array": {"elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6},
+      "transmit": {"kind": "single_element"}, "sampling": {"frequency_mhz": 50, "samples": 500},
+      "medium": {"speed_m_s": 5920, "thickness_mm": 10},
+      "reflectors": {"back_wall": {"depth_mm": 10}, "points": [{"position_mm": [1.5, 0, 6], "amplitude": 1}]},
+      "noise": {"snr_db": 40, "reference": "peak"}})J";
+    recon::sim::simulateToFile(recon::sim::parseScene(scene, "point"), cap.toStdString());
+    MainWindow w(ui::test::quietOptions());
+    auto* ctl = w.controller();
+    ASSERT_TRUE(w.openPath(cap));
+    ASSERT_TRUE(waitUntil([&] { return ctl->hasImage() && !ctl->isBusy(); }));
+    QString why;
+    const auto d = ctl->calibrateDelay(1.5, 6, 0, 0.02, &why);
+    ASSERT_TRUE(d) << why.toStdString();
+    EXPECT_LE(std::abs(d->delay.value), d->delay.budget.expanded());
+    EXPECT_LT(std::abs(d->delay.value), 10e-9);
+    EXPECT_TRUE(ctl->techniqueText().contains("Fixed delay (calibrated from a point reflector at x = 1.50 mm, depth 6.00 mm, L path)"))
+        << ctl->techniqueText().toStdString();
+    ASSERT_TRUE(ctl->calibrateSpeed(10, 0.02, &why)) << why.toStdString();
+    EXPECT_TRUE(ctl->techniqueText().contains("Speed of sound (calibrated"));
+    EXPECT_TRUE(ctl->techniqueText().contains("Fixed delay (calibrated"));  // kept
+    // Again: the delay block is replaced, not repeated.
+    ASSERT_TRUE(ctl->calibrateDelay(1.5, 6, 0, 0.02, &why));
+    EXPECT_EQ(ctl->techniqueText().count("Fixed delay (calibrated"), 1);
+    ctl->undoStack()->undo();
+    ctl->undoStack()->undo();
+    EXPECT_FALSE(ctl->techniqueText().contains("Speed of sound (calibrated"));
+    EXPECT_TRUE(ctl->techniqueText().contains("Fixed delay (calibrated"));
+    ctl->undoStack()->undo();
+    EXPECT_FALSE(ctl->techniqueText().contains("Fixed delay (calibrated"));
+    // A wrong position 5 mm away still finds the point's echo within the search, but its
+    // moveout does not fit: the spread across elements says so and the uncertainty grows.
+    const auto wrong = ctl->calibrateDelay(-3, 3, 0, 0.02, &why);
+    ASSERT_TRUE(wrong) << why.toStdString();
+    EXPECT_GT(wrong->delay.budget.expanded(), 10 * d->delay.budget.expanded());
+    EXPECT_TRUE(ctl->techniqueText().contains("do not follow the moveout")) << ctl->techniqueText().toStdString();
+    ctl->undoStack()->undo();
+    // No echo there (beyond the record): a clear message, nothing recorded.
+    const int n = ctl->undoStack()->count();
+    EXPECT_FALSE(ctl->calibrateDelay(-3, 40, 0, 0.02, &why));
+    EXPECT_FALSE(why.isEmpty());
+    EXPECT_EQ(ctl->undoStack()->count(), n);
+    // The delay removed is stated in the technique text.
+    ctl->editRecipeValue("delay_model.fixed_delay_us", "0.25");
+    EXPECT_TRUE(ctl->techniqueText().contains("Fixed delay removed from every trace: 0.25 µs"));
+}

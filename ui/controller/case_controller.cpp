@@ -1135,6 +1135,49 @@ namespace {
 using CalibrationLines = std::pair<std::vector<std::string>, std::vector<std::string>>;  // speed, elements
 }
 
+namespace {
+// The speed calibration lines of a capture hold up to two blocks: the speed's and the fixed
+// delay's (a head line and its indented notes). Each calibration replaces its own block only.
+constexpr const char* kDelayHead = "Fixed delay (calibrated from a";
+std::vector<std::string> withBlock(const std::vector<std::string>& old, const std::vector<std::string>& block, bool delay) {
+    std::vector<std::string> speed, del;
+    bool in_delay = false;
+    for (const auto& l : old) {
+        if (l.rfind("  ", 0) != 0) in_delay = l.rfind(kDelayHead, 0) == 0;
+        (in_delay ? del : speed).push_back(l);
+    }
+    (delay ? del : speed) = block;
+    speed.insert(speed.end(), del.begin(), del.end());
+    return speed;
+}
+}  // namespace
+
+std::optional<recon::DelayCalibration> CaseController::calibrateDelay(double x_mm, double z_mm, double dia_mm, double tol_mm,
+                                                                      QString* why) {
+    if (!reader_) {
+        if (why) *why = tr("Open a capture first.");
+        return std::nullopt;
+    }
+    try {
+        const recon::Wave wave = reader_->header().medium.wedge ? recon::Wave::T : recon::Wave::L;
+        const auto c = recon::fixedDelayFromReflector(*reader_, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, tol_mm * 1e-3, wave, frame_);
+        std::vector<std::string> lines = recon::delayLines(c, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, wave);
+        lines.front() += " (frame " + std::to_string(frame_ + 1) + ", position ± " + QString::number(tol_mm, 'g', 3).toStdString() + " mm)";
+        const CalibrationLines before{active().speed_calibration, active().element_health};
+        const CalibrationLines after{withBlock(before.first, lines, true), before.second};
+        undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the fixed delay"), before, after,
+                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                          active().speed_calibration = v.first;
+                                                          active().element_health = v.second;
+                                                          emit caseChanged();
+                                                      })));
+        return c;
+    } catch (const std::exception& e) {
+        if (why) *why = QString::fromUtf8(e.what());
+        return std::nullopt;
+    }
+}
+
 std::optional<core::MeasuredValue> CaseController::calibrateSpeed(double thickness_mm, double tol_mm, QString* why) {
     if (!reader_) {
         if (why) *why = tr("Open a capture first.");
@@ -1146,7 +1189,7 @@ std::optional<core::MeasuredValue> CaseController::calibrateSpeed(double thickne
         lines.front() += " (frame " + std::to_string(frame_ + 1) + ", plate " +
                          core::formatWithUncertainty(thickness_mm, tol_mm, "mm") + ")";
         const CalibrationLines before{active().speed_calibration, active().element_health};
-        const CalibrationLines after{lines, before.second};
+        const CalibrationLines after{withBlock(before.first, lines, false), before.second};
         undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the speed of sound"), before, after,
                                                       onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
                                                           active().speed_calibration = v.first;

@@ -26,6 +26,7 @@
 #include "core/measurement.h"
 #include "core/parameters.h"
 #include "core/sizing.h"
+#include "reconstruction/calibration.h"
 #include "reconstruction/coverage.h"
 #include "reconstruction/sizing_setup.h"
 #include "ui/controller/beamform_worker.h"
@@ -292,6 +293,12 @@ public:
     /// capture's calibration and the technique block (undoable). nullopt with `why` when it
     /// cannot be done (no capture, not a full matrix, no echo).
     std::optional<core::MeasuredValue> calibrateSpeed(double thickness_mm, double tol_mm, QString* why = nullptr);
+    /// Fixed delay from a reflector at a known place (x_mm, z_mm in the specimen frame; a hole of
+    /// diameter dia_mm, 0 for a point or tip) seen through the wedge with a T path (on contact:
+    /// L) on the current frame (recon::fixedDelayFromReflector). Its lines join the capture's
+    /// calibration lines (replacing an earlier delay calibration, keeping the speed's); undoable.
+    std::optional<recon::DelayCalibration> calibrateDelay(double x_mm, double z_mm, double dia_mm, double tol_mm,
+                                                          QString* why = nullptr);
     /// Weak and dead elements of the current frame (recon::elementHealth); lines recorded like
     /// calibrateSpeed. Returns the flagged elements (0-based); nullopt with `why` on failure.
     std::optional<std::vector<int>> checkElements(QString* why = nullptr);

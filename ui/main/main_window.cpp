@@ -421,6 +421,44 @@ void MainWindow::buildActions() {
         }
     });
     a->setToolTip(tr("c = 2 d / t from the back-wall echo of the pulse-echo traces (and its repeat when recorded), with its uncertainty"));
+    a = tools->addAction(tr("Calibrate fixed &delay from a known reflector…"), this, [this] {
+        const QString title = tr("Calibrate fixed delay");
+        if (!ctl_->hasCapture()) {
+            showError(title, tr("Open a capture first."));
+            return;
+        }
+        bool ok = false;
+        const double x = QInputDialog::getDouble(this, title, tr("Reflector position along the surface x, mm (as drawn on the image):"), 0,
+                                                 -10000, 10000, 2, &ok);
+        if (!ok) return;
+        const double z = QInputDialog::getDouble(this, title, tr("Reflector depth (centre), mm:"), 10, 0.01, 10000, 2, &ok);
+        if (!ok) return;
+        const double dia = QInputDialog::getDouble(this, title, tr("Side-drilled hole diameter, mm (0 for a point or a tip):"), 0, 0, 50, 2, &ok);
+        if (!ok) return;
+        const double tol = QInputDialog::getDouble(this, title, tr("Tolerance of the position, ± mm (x and depth):"), 0.05, 0, 10, 3, &ok);
+        if (!ok) return;
+        QString why;
+        const auto c = ctl_->calibrateDelay(x, z, dia, tol, &why);
+        if (!c) {
+            showError(title, why);
+            return;
+        }
+        QStringList lines;
+        for (const auto& l : recon::delayLines(*c, x * 1e-3, z * 1e-3, dia * 0.5e-3, ctl_->header().medium.wedge ? recon::Wave::T : recon::Wave::L))
+            lines << QString::fromStdString(l);
+        const auto r = core::roundToUncertainty(c->delay.value * 1e6, c->delay.budget.expanded() * 1e6);
+        if (QMessageBox::question(this, title,
+                                  lines.join('\n') + tr("\n\nIt is recorded in the technique block. Remove %1 µs from every trace "
+                                                        "before imaging (delay_model.fixed_delay_us)?")
+                                                          .arg(QString::fromStdString(r.value_text))) == QMessageBox::Yes) {
+            try {
+                ctl_->editRecipeValue("delay_model.fixed_delay_us", r.value_text);
+            } catch (const std::exception& e) {
+                showError(title, QString::fromUtf8(e.what()));
+            }
+        }
+    });
+    a->setToolTip(tr("The delay in every trace beyond the modelled paths, from a hole or tip at a known place seen through the wedge"));
     a = tools->addAction(tr("Check &elements…"), this, [this] {
         QString why;
         const auto flagged = ctl_->checkElements(&why);
