@@ -94,12 +94,17 @@ void TopView::paintEvent(QPaintEvent*) {
     // x axis along the bottom.
     const double x0 = fr->x_m.front() * 1e3, x1 = fr->x_m.back() * 1e3;
     const double sx = niceStep(x1 - x0, std::max(2, static_cast<int>(r.width() / 70)));
+    const QString x_title = tr("x, mm");
+    const double title_left = r.right() - p.fontMetrics().horizontalAdvance(x_title) - 6;
     for (double x = std::ceil(x0 / sx) * sx; x <= x1 + 1e-9; x += sx) {
         const double px = r.left() + (x - x0) / (x1 - x0) * r.width();
         p.drawLine(QPointF(px, r.bottom()), QPointF(px, r.bottom() + 4));
-        p.drawText(QRectF(px - 25, r.bottom() + 5, 50, 14), Qt::AlignCenter, QString::number(x, 'g', 5));
+        const QString label = QString::number(x, 'g', 5);
+        // A tick label that would run into the axis title is left out (the tick stays).
+        if (px + p.fontMetrics().horizontalAdvance(label) / 2.0 >= title_left) continue;
+        p.drawText(QRectF(px - 25, r.bottom() + 5, 50, 14), Qt::AlignCenter, label);
     }
-    p.drawText(QRectF(r.right() - 80, r.bottom() + 5, 80, 14), Qt::AlignRight, tr("x, mm"));
+    p.drawText(QRectF(r.right() - 80, r.bottom() + 5, 80, 14), Qt::AlignRight, x_title);
     // Scan position down the left side.
     const auto& h = ctl_->header();
     const auto& pos = h.scan->position_m;
