@@ -1152,6 +1152,15 @@ std::vector<std::string> withBlock(const std::vector<std::string>& old, const st
 }
 }  // namespace
 
+void CaseController::recordCalibration(const QString& what, const std::pair<std::vector<std::string>, std::vector<std::string>>& after) {
+    const CalibrationLines before{active().speed_calibration, active().element_health};
+    undo_.push(new ValueCommand<CalibrationLines>(what, before, after, onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
+                                                      active().speed_calibration = v.first;
+                                                      active().element_health = v.second;
+                                                      emit caseChanged();
+                                                  })));
+}
+
 std::optional<recon::DelayCalibration> CaseController::calibrateDelay(double x_mm, double z_mm, double dia_mm, double tol_mm,
                                                                       QString* why) {
     if (!reader_) {
@@ -1163,14 +1172,7 @@ std::optional<recon::DelayCalibration> CaseController::calibrateDelay(double x_m
         const auto c = recon::fixedDelayFromReflector(*reader_, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, tol_mm * 1e-3, wave, frame_);
         std::vector<std::string> lines = recon::delayLines(c, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, wave);
         lines.front() += " (frame " + std::to_string(frame_ + 1) + ", position ± " + QString::number(tol_mm, 'g', 3).toStdString() + " mm)";
-        const CalibrationLines before{active().speed_calibration, active().element_health};
-        const CalibrationLines after{withBlock(before.first, lines, true), before.second};
-        undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the fixed delay"), before, after,
-                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
-                                                          active().speed_calibration = v.first;
-                                                          active().element_health = v.second;
-                                                          emit caseChanged();
-                                                      })));
+        recordCalibration(tr("Calibrate the fixed delay"), {withBlock(active().speed_calibration, lines, true), active().element_health});
         return c;
     } catch (const std::exception& e) {
         if (why) *why = QString::fromUtf8(e.what());
@@ -1188,14 +1190,7 @@ std::optional<core::MeasuredValue> CaseController::calibrateSpeed(double thickne
         std::vector<std::string> lines = recon::calibrationLines(c);
         lines.front() += " (frame " + std::to_string(frame_ + 1) + ", plate " +
                          core::formatWithUncertainty(thickness_mm, tol_mm, "mm") + ")";
-        const CalibrationLines before{active().speed_calibration, active().element_health};
-        const CalibrationLines after{withBlock(before.first, lines, false), before.second};
-        undo_.push(new ValueCommand<CalibrationLines>(tr("Calibrate the speed of sound"), before, after,
-                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
-                                                          active().speed_calibration = v.first;
-                                                          active().element_health = v.second;
-                                                          emit caseChanged();
-                                                      })));
+        recordCalibration(tr("Calibrate the speed of sound"), {withBlock(active().speed_calibration, lines, false), active().element_health});
         return c.speed;
     } catch (const std::exception& e) {
         if (why) *why = QString::fromUtf8(e.what());
@@ -1212,14 +1207,7 @@ std::optional<std::vector<int>> CaseController::checkElements(QString* why) {
         const auto h = recon::elementHealth(*reader_, frame_);
         std::vector<std::string> lines = recon::healthLines(h);
         lines.front() += " (frame " + std::to_string(frame_ + 1) + ")";
-        const CalibrationLines before{active().speed_calibration, active().element_health};
-        const CalibrationLines after{before.first, lines};
-        undo_.push(new ValueCommand<CalibrationLines>(tr("Check the elements"), before, after,
-                                                      onThisCapture<CalibrationLines>([this](const CalibrationLines& v) {
-                                                          active().speed_calibration = v.first;
-                                                          active().element_health = v.second;
-                                                          emit caseChanged();
-                                                      })));
+        recordCalibration(tr("Check the elements"), {active().speed_calibration, lines});
         return h.flagged();
     } catch (const std::exception& e) {
         if (why) *why = QString::fromUtf8(e.what());

@@ -406,6 +406,8 @@ private:
     void rebuildTopView();
     void setBusy(bool b);
     void markDirty();
+    /// Pushes an undoable change of the active capture's calibration lines (speed, elements).
+    void recordCalibration(const QString& what, const std::pair<std::vector<std::string>, std::vector<std::string>>& after);
     /// Appends the current document to the journal as the edit `what` (see journalFile()).
     void journal(const QString& what);
     void stopTopViewRun();
