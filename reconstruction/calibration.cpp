@@ -428,8 +428,9 @@ DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, dou
         out.notes.push_back("Another echo lines up almost as well at a delay of " + fmt(*rival * 1e6, 3) +
                             " µs (within 12 dB): make sure the reflector is isolated, or narrow the search (--search-us) around "
                             "the delay expected.");
-    out.notes.push_back(std::string("The part's ") + wname + " speed (" + fmt(c, 0) + " m/s)" + (g.wedge ? " and the wedge's (" + fmt(g.wedge->speed_of_sound_m_s, 0) + " m/s)" : std::string()) +
-                        " are taken as exact: an error in them goes into the delay.");
+    out.notes.push_back(std::string("The part's ") + wname + " speed (" + fmt(c, 0) + " m/s)" +
+                        (g.wedge ? " and the wedge's (" + fmt(g.wedge->speed_of_sound_m_s, 0) + " m/s) are" : std::string(" is")) +
+                        " taken as exact: an error in " + (g.wedge ? "them" : "it") + " goes into the delay.");
     return out;
 }
 
