@@ -140,7 +140,10 @@ JobResult reconstructToFile(const JobOptions& o, const core::Recipe& recipe) {
         const core::Frame g = recon::applyTgc(f, h, recipe);
         f = core::Frame();  // one frame in memory at a time
         out.append(g.envelope);
-        if (o.png) recon::writePng(pngPathFor(*o.png, index, frames.count > 1), g, recipe, title + "  (frame " + std::to_string(index) + ")", o.dark_png);
+        if (o.png)
+            recon::writePng(pngPathFor(*o.png, index, frames.count > 1), g, recipe,
+                            title + "  (frame " + std::to_string(index) + (facts.view_mode.empty() ? "" : ", view " + facts.view_mode) + ")",
+                            o.dark_png);
         r.output_seconds += since(t0);
         const auto& t = rec.lastTimings();
         if (r.stage_seconds.empty()) r.stage_seconds = t.stage_seconds;
