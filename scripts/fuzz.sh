@@ -50,16 +50,16 @@ classify() {  # $1 target binary, $2 input: prints "libhdf5", "umbra" or "none" 
   out=$(LSAN_OPTIONS=suppressions="$PWD/tests/fuzz/lsan.supp" ASAN_OPTIONS=allocator_may_return_null=1 \
         timeout 60 "$1" -timeout=10 -rss_limit_mb=2048 "$2" 2>&1) || rc=$?
   if [ $rc -eq 0 ]; then echo none; return; fi
-  # The first stack frame that is either in libhdf5 or in the fuzz binary (Umbra's code is linked
-  # into it statically) decides. Frames of the sanitizer runtime, libFuzzer, the C and C++
-  # runtimes and the compression libraries HDF5 calls (zlib, szip) are passed over: a timeout
-  # can interrupt HDF5 inside inflate(), an uncaught exception from Umbra's code passes through
-  # std::terminate before reaching an Umbra frame.
-  local bin first
-  bin=$(basename "$1")
+  # The first stack frame that is either in libhdf5 or in Umbra's sources (file:line under core/,
+  # reconstruction/, tests/ or app/; the fuzz build has debug information) decides. Everything
+  # else is passed over: the sanitizer's interceptors (strdup, memcpy, ... live in the fuzz binary
+  # without a source line), libFuzzer, the C and C++ runtimes and the compression libraries HDF5
+  # calls (a timeout can interrupt HDF5 inside inflate(); an uncaught exception from Umbra's code
+  # passes through std::terminate before reaching an Umbra frame).
+  local first
   first=$(printf '%s\n' "$out" | grep -E '^ +#[0-9]+ ' |
           grep -v -E 'interceptor|__sanitizer|sanitizer_common|asan_|ubsan_|lsan_|libFuzzer|fuzzer::| in (malloc|calloc|realloc|memalign|posix_memalign|operator new)' |
-          grep -E "libhdf5|/$bin\+0x|/(core|reconstruction|tests)/" | head -1 || true)
+          grep -E "libhdf5|/(core|reconstruction|tests|app)/[^ ]*\.(cpp|h):[0-9]+" | head -1 || true)
   case "$first" in
     *libhdf5*) echo libhdf5 ;;
     "") if printf '%s\n' "$out" | grep -q -E '^ +#[0-9]+ .*libhdf5'; then echo libhdf5; else echo umbra; fi ;;
