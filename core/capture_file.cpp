@@ -27,8 +27,6 @@ std::mutex& h5Mutex() { return hdf5Mutex(); }  // shared with image files
 
 // A string from the file, safe to put into a one-line message: control and non-ASCII bytes
 // become '?', and it is cut to 60 characters.
-// "12.5 MiB" (one decimal) for messages about sizes.
-
 std::string printable(const std::string& s) {
     std::string out;
     for (unsigned char c : s.substr(0, 60)) out += (c >= 0x20 && c < 0x7f) ? char(c) : '?';

@@ -409,6 +409,10 @@ DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, dou
         if (std::isfinite(model[k]) && peaks[k].found && peaks[k].amplitude >= strongest / 2)  // within 6 dB of the strongest
             residual.push_back(peaks[k].time_s - model[k]);
     DelayCalibration out;
+    out.x_s_m = xs;
+    out.z_s_m = zs;
+    out.radius_m = radius;
+    out.wave = wave;
     out.elements = residual.size();
     out.amplitude = strongest;
     const double med = median(residual);
@@ -434,11 +438,13 @@ DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, dou
     return out;
 }
 
-std::vector<std::string> delayLines(const DelayCalibration& c, double xs, double zs, double radius, Wave wave) {
+Wave defaultDelayWave(const core::CaptureHeader& h) { return h.medium.wedge ? Wave::T : Wave::L; }
+
+std::vector<std::string> delayLines(const DelayCalibration& c) {
     std::vector<std::string> out;
-    std::string ref = radius > 0 ? "Ø" + fmt(2 * radius * 1e3, 2) + " mm hole" : "point reflector";
-    out.push_back("Fixed delay (calibrated from a " + ref + " at x = " + fmt(xs * 1e3, 2) + " mm, depth " + fmt(zs * 1e3, 2) + " mm, " +
-                  (wave == Wave::L ? "L" : "T") + " path): " +
+    const std::string ref = c.radius_m > 0 ? "Ø" + fmt(2 * c.radius_m * 1e3, 2) + " mm hole" : "point reflector";
+    out.push_back("Fixed delay (calibrated from a " + ref + " at x = " + fmt(c.x_s_m * 1e3, 2) + " mm, depth " + fmt(c.z_s_m * 1e3, 2) +
+                  " mm, " + (c.wave == Wave::L ? "L" : "T") + " path): " +
                   core::formatWithUncertainty(c.delay.value * 1e6, c.delay.budget.expanded() * 1e6, "µs") + " (k = 2), " +
                   std::to_string(c.elements) + " elements");
     for (const auto& n : c.notes) out.push_back("  " + n);

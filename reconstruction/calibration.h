@@ -77,6 +77,8 @@ core::MeasuredValue fixedDelay(const EchoTime& echo, double depth_m, double dept
 /// the pulse-echo envelopes along the model's moveout (only the reflector at the assumed place
 /// lines up), then each element's echo is taken within one period of it.
 struct DelayCalibration {
+    double x_s_m = 0, z_s_m = 0, radius_m = 0;  ///< the reflector as given
+    Wave wave = Wave::L;                         ///< wave type of the path in the part
     core::MeasuredValue delay;  ///< s, budget with k = 2
     size_t elements = 0;        ///< pulse-echo traces used
     double spread_s = 0;        ///< robust standard deviation of the per-element residuals, s
@@ -88,8 +90,10 @@ struct DelayCalibration {
 /// echo is found.
 DelayCalibration fixedDelayFromReflector(const core::CaptureReader& capture, double x_s_m, double z_s_m, double radius_m,
                                          double position_tol_m, Wave wave, size_t frame = 0, double search_s = 2e-6);
+/// The usual wave type for a delay calibration: shear through a wedge, longitudinal on contact.
+Wave defaultDelayWave(const core::CaptureHeader& h);
 /// Plain-text lines for the technique block / the CLI.
-std::vector<std::string> delayLines(const DelayCalibration& c, double x_s_m, double z_s_m, double radius_m, Wave wave);
+std::vector<std::string> delayLines(const DelayCalibration& c);
 
 /// Element health from the energies of a full matrix (frame `frame`).
 enum class ElementStatus { Ok, Weak, Dead };

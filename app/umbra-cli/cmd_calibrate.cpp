@@ -142,7 +142,7 @@ int cmdCalibrate(const Argv& argv) {
         double dia = 0;
         if (auto d = a.value("--hole-diameter-mm")) dia = parseFiniteNumber("--hole-diameter-mm", *d) * 1e-3;
         if (dia < 0) throw UsageError("--hole-diameter-mm must not be negative");
-        recon::Wave wave = cap.header().medium.wedge ? recon::Wave::T : recon::Wave::L;
+        recon::Wave wave = recon::defaultDelayWave(cap.header());
         if (auto w = a.value("--wave")) {
             if (*w == "L") wave = recon::Wave::L;
             else if (*w == "T") wave = recon::Wave::T;
@@ -159,11 +159,9 @@ int cmdCalibrate(const Argv& argv) {
         j["fixed_delay_us"] = measuredJson(c.delay, 1e6, "us");
         j["elements_used"] = c.elements;
         j["notes"] = c.notes;
-        for (const auto& l : recon::delayLines(c, x, z, dia / 2, wave)) lines.push_back(l);
+        for (const auto& l : recon::delayLines(c)) lines.push_back(l);
         const auto r = core::roundToUncertainty(c.delay.value * 1e6, c.delay.budget.expanded() * 1e6);
-        std::ostringstream v;
-        v << r.value;
-        lines.push_back("  to remove it: --set delay_model.fixed_delay_us=" + v.str());
+        lines.push_back("  to remove it: --set delay_model.fixed_delay_us=" + r.value_text);
     }
     if (want_elements) {
         const auto health = recon::elementHealth(cap, frame);

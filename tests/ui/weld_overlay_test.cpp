@@ -46,6 +46,19 @@ double brightnessAt(const QImage& img, const ui::ImageView& v, double x_mm, doub
     return sum / 9;
 }
 
+// A 16-element full matrix on a 10 mm steel plate (5920 m/s) with its back wall, plus
+// `extra_reflectors` (JSON members after the back wall), simulated into the test folder.
+QString simulatePlate(const QString& name, const std::string& extra_reflectors, int seed) {
+    const QString cap = ui::test::tempDir() + "/" + name + ".h5";
+    const std::string scene = R"J({"title": "plate (synthetic)", "scenario": "ui_calibration", "seed": )J" + std::to_string(seed) + R"J(,
+      "array": {"elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6},
+      "transmit": {"kind": "single_element"}, "sampling": {"frequency_mhz": 50, "samples": 500},
+      "medium": {"speed_m_s": 5920, "thickness_mm": 10},
+      "reflectors": {"back_wall": {"depth_mm": 10})J" + extra_reflectors + R"J(}, "noise": {"snr_db": 40, "reference": "peak"}})J";
+    recon::sim::simulateToFile(recon::sim::parseScene(scene, name.toStdString()), cap.toStdString());
+    return cap;
+}
+
 }  // namespace
 
 TEST(weld_overlay_test, entered_drawn_undone_and_saved_with_the_case) {
@@ -120,14 +133,7 @@ TEST(weld_overlay_test, entered_drawn_undone_and_saved_with_the_case) {
 // Speed of sound from the back wall of a simulated 10 mm steel plate (5920 m/s) and the
 // element check go into the technique block and are undoable.
 TEST(weld_overlay_test, calibration_goes_into_the_technique_block) {
-    const QString dir = ui::test::tempDir();
-    const QString cap = dir + "/plate.h5";
-    const std::string scene = R"J({"title": "plate (synthetic)", "scenario": "ui_calibration", "seed": 3,
-      "array": {"elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6},
-      "transmit": {"kind": "single_element"}, "sampling": {"frequency_mhz": 50, "samples": 500},
-      "medium": {"speed_m_s": 5920, "thickness_mm": 10},
-      "reflectors": {"back_wall": {"depth_mm": 10}}, "noise": {"snr_db": 40, "reference": "peak"}})J";
-    recon::sim::simulateToFile(recon::sim::parseScene(scene, "plate"), cap.toStdString());
+    const QString cap = simulatePlate("plate", "", 3);
     MainWindow w(ui::test::quietOptions());
     auto* ctl = w.controller();
     ASSERT_TRUE(w.openPath(cap));
@@ -164,15 +170,7 @@ TEST(weld_overlay_test, calibration_goes_into_the_technique_block) {
 // within 10 ns). Its lines join the speed's in the technique block; a new speed calibration
 // keeps them, and each is one undoable edit.
 TEST(weld_overlay_test, fixed_delay_from_a_known_reflector_joins_the_calibration_lines) {
-    const QString dir = ui::test::tempDir();
-    const QString cap = dir + "/point.h5";
-    const std::string scene = R"J({"title": "point in a plate (synthetic)", "scenario": "ui_delay", "seed": 5,
-      "array": {"elements": 16, "pitch_mm": 0.6, "element_width_mm": 0.5, "centre_frequency_mhz": 5, "fractional_bandwidth": 0.6},
-      "transmit": {"kind": "single_element"}, "sampling": {"frequency_mhz": 50, "samples": 500},
-      "medium": {"speed_m_s": 5920, "thickness_mm": 10},
-      "reflectors": {"back_wall": {"depth_mm": 10}, "points": [{"position_mm": [1.5, 0, 6], "amplitude": 1}]},
-      "noise": {"snr_db": 40, "reference": "peak"}})J";
-    recon::sim::simulateToFile(recon::sim::parseScene(scene, "point"), cap.toStdString());
+    const QString cap = simulatePlate("point", R"J(, "points": [{"position_mm": [1.5, 0, 6], "amplitude": 1}])J", 5);
     MainWindow w(ui::test::quietOptions());
     auto* ctl = w.controller();
     ASSERT_TRUE(w.openPath(cap));

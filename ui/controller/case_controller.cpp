@@ -1133,9 +1133,7 @@ void CaseController::editCurve(const std::optional<core::DistanceAmplitudeCurve>
 
 namespace {
 using CalibrationLines = std::pair<std::vector<std::string>, std::vector<std::string>>;  // speed, elements
-}
 
-namespace {
 // The speed calibration lines of a capture hold up to two blocks: the speed's and the fixed
 // delay's (a head line and its indented notes). Each calibration replaces its own block only.
 constexpr const char* kDelayHead = "Fixed delay (calibrated from a";
@@ -1168,9 +1166,9 @@ std::optional<recon::DelayCalibration> CaseController::calibrateDelay(double x_m
         return std::nullopt;
     }
     try {
-        const recon::Wave wave = reader_->header().medium.wedge ? recon::Wave::T : recon::Wave::L;
-        const auto c = recon::fixedDelayFromReflector(*reader_, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, tol_mm * 1e-3, wave, frame_);
-        std::vector<std::string> lines = recon::delayLines(c, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, wave);
+        const auto c = recon::fixedDelayFromReflector(*reader_, x_mm * 1e-3, z_mm * 1e-3, dia_mm * 0.5e-3, tol_mm * 1e-3,
+                                                      recon::defaultDelayWave(reader_->header()), frame_);
+        std::vector<std::string> lines = recon::delayLines(c);
         lines.front() += " (frame " + std::to_string(frame_ + 1) + ", position ± " + QString::number(tol_mm, 'g', 3).toStdString() + " mm)";
         recordCalibration(tr("Calibrate the fixed delay"), {withBlock(active().speed_calibration, lines, true), active().element_health});
         return c;
@@ -1796,7 +1794,7 @@ QString CaseController::techniqueText() const {
     }
     if (const QString v = viewText(); !v.isEmpty()) lines << tr("View: %1").arg(v);
     if (const double d = recipe_.number("delay_model.fixed_delay_us"); d != 0)
-        lines << tr("Fixed delay removed from every trace: %1 µs (recipe, from calibration)").arg(d, 0, 'g', 6);
+        lines << tr("Fixed delay removed from every trace: %1 µs (recipe, delay_model.fixed_delay_us)").arg(d, 0, 'g', 6);
     if (envelope_ && envelope_->nx() > 1 && envelope_->nz() > 1)
         lines << tr("Grid: step %1 mm, x %2 to %3 mm, depth %4 to %5 mm; amplitude fidelity %6 dB")
                      .arg((envelope_->x_m[1] - envelope_->x_m[0]) * 1e3, 0, 'f', 3)

@@ -444,8 +444,7 @@ void MainWindow::buildActions() {
             return;
         }
         QStringList lines;
-        for (const auto& l : recon::delayLines(*c, x * 1e-3, z * 1e-3, dia * 0.5e-3, ctl_->header().medium.wedge ? recon::Wave::T : recon::Wave::L))
-            lines << QString::fromStdString(l);
+        for (const auto& l : recon::delayLines(*c)) lines << QString::fromStdString(l);
         const auto r = core::roundToUncertainty(c->delay.value * 1e6, c->delay.budget.expanded() * 1e6);
         if (QMessageBox::question(this, title,
                                   lines.join('\n') + tr("\n\nIt is recorded in the technique block. Remove %1 µs from every trace "
